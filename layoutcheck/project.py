@@ -1,0 +1,266 @@
+"""The project file ``layoutcheck.toml``: load, validate, defaults, and what they assume.
+
+Contract shape (keys may be added, never changed)::
+
+    [board]
+    files = "."               # folder, zip or file, relative to this file
+    [voltages]                # volts: a number, or "lo..hi" for a node that swings
+    "HV_BUS" = 340            # exact net name
+    "SW_*" = "0..340"         # shell-style glob
+    "*" = "0..15"             # fallback for every other net
+    [environment]
+    altitude_m = 0
+    coating = "none"          # none | solder-mask | conformal
+
+An exact name beats a glob; among globs the first in the file wins.  Without a ``"*"`` key
+undeclared nets get 0..15 V and each is listed as an assumption.
+
+Further keys read here: ``[board] netlist``, ``[board] layers`` (file name -> layer, for
+files that do not say what they are), ``[board] plated`` / ``non_plated`` (drill file names),
+``[board] size_mm`` (used when there is no profile layer), ``[stackup] thickness_mm``,
+``copper_um``; ``[rules] ignore`` (rule ids not to run).
+"""
+from __future__ import annotations
+
+import fnmatch
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .errors import ProjectFileError
+from .model import Assumption
+from .units import VoltageRange, parse_voltage
+
+PROJECT_FILE_NAME = "layoutcheck.toml"
+DEFAULT_UNDECLARED = VoltageRange(0.0, 15.0)
+COATINGS = ("none", "solder-mask", "conformal")
+
+
+@dataclass
+class Environment:
+    """Where the board will live.  ``altitude_m`` in metres above sea level."""
+
+    altitude_m: float = 0.0
+    coating: str = "none"
+    explicit: set[str] = field(default_factory=set)  # keys the file actually gave
+
+
+@dataclass
+class VoltageRule:
+    pattern: str
+    voltage: VoltageRange
+    is_glob: bool
+    order: int
+
+
+@dataclass
+class Project:
+    """A loaded project file (or the defaults when there is none).
+
+    path:        the project file, or ``None`` for defaults.
+    board_files: what ``[board] files`` points at (absolute), or ``None``.
+    data:        the raw TOML tables, for later rules that read their own keys.
+    """
+
+    path: Path | None = None
+    board_files: Path | None = None
+    netlist: Path | None = None
+    voltage_rules: list[VoltageRule] = field(default_factory=list)
+    environment: Environment = field(default_factory=Environment)
+    layer_map: dict[str, str] = field(default_factory=dict)
+    plated_files: list[str] = field(default_factory=list)
+    non_plated_files: list[str] = field(default_factory=list)
+    size_mm: tuple[float, float] | None = None
+    stackup_thickness_mm: float | None = None
+    stackup_copper_um: float | None = None
+    ignore_rules: list[str] = field(default_factory=list)
+    data: dict[str, Any] = field(default_factory=dict)
+    assumptions: list[Assumption] = field(default_factory=list)
+
+    # -- voltages ---------------------------------------------------------------------
+    def voltage_of(self, net: str) -> tuple[VoltageRange, str]:
+        """The voltage range (V) of ``net`` and how it was found.
+
+        The second value is ``"exact"``, ``"glob <pattern>"``, ``"fallback *"`` or
+        ``"undeclared"``; the last two mean the voltage is an assumption.
+        """
+        for rule in self.voltage_rules:
+            if not rule.is_glob and rule.pattern == net:
+                return rule.voltage, "exact"
+        fallback = None
+        for rule in self.voltage_rules:
+            if rule.is_glob:
+                if rule.pattern == "*":
+                    if fallback is None:
+                        fallback = rule
+                    continue
+                if fnmatch.fnmatchcase(net, rule.pattern):
+                    return rule.voltage, f"glob {rule.pattern}"
+        if fallback is not None:
+            return fallback.voltage, "fallback *"
+        return DEFAULT_UNDECLARED, "undeclared"
+
+    def voltage_assumptions(self, nets) -> list[Assumption]:
+        """One assumption per net whose voltage came from ``"*"`` or the built-in default."""
+        out = []
+        for net in sorted(nets):
+            v, how = self.voltage_of(net)
+            if how == "fallback *":
+                out.append(Assumption("voltage", f"net {net}: no voltage declared; the "
+                                      f"project's \"*\" fallback gives {v.text()}"))
+            elif how == "undeclared":
+                out.append(Assumption("voltage", f"net {net}: no voltage declared and no "
+                                      f"\"*\" fallback; assumed {v.text()}"))
+        return out
+
+
+def find_project_file(folder: Path) -> Path | None:
+    p = folder / PROJECT_FILE_NAME
+    return p if p.is_file() else None
+
+
+def load_project(path: Path | None) -> Project:
+    """Load and validate a project file; ``None`` gives the defaults (with assumptions)."""
+    if path is None:
+        proj = Project()
+        proj.assumptions.append(Assumption(
+            "project", "no project file: every net is assumed to be 0..15 V and the "
+                       "environment sea level, uncoated; declare the voltages in "
+                       f"{PROJECT_FILE_NAME} (`layoutcheck init` writes a starter)"))
+        _environment_assumptions(proj)
+        return proj
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+    except OSError as e:
+        raise ProjectFileError(f"cannot read the project file: {e.strerror}", file=str(path)) from e
+    try:
+        text = raw.decode("utf-8")
+        data = tomllib.loads(text)
+    except UnicodeDecodeError as e:
+        raise ProjectFileError("the project file is not UTF-8 text", file=str(path)) from e
+    except tomllib.TOMLDecodeError as e:
+        line = getattr(e, "lineno", None)
+        raise ProjectFileError(f"not valid TOML: {e}", file=str(path), line=line) from e
+    return project_from_data(data, path, text)
+
+
+def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
+    """Build a :class:`Project` from parsed TOML ``data`` (``path`` for messages)."""
+    where = str(path) if path else "<project>"
+    base = path.parent if path else Path(".")
+    proj = Project(path=path, data=data)
+
+    def line_of(key: str) -> int | None:
+        if not text:
+            return None
+        for n, line in enumerate(text.splitlines(), 1):
+            s = line.strip()
+            if s.startswith(key) or s.startswith(f'"{key}"'):
+                return n
+        return None
+
+    def fail(msg, key=None):
+        raise ProjectFileError(msg, file=where, line=line_of(key) if key else None)
+
+    board = _table(data, "board", fail)
+    if "files" in board:
+        if not isinstance(board["files"], str):
+            fail("[board] files must be a string (a folder, zip or file relative to the "
+                 "project file)", "files")
+        proj.board_files = (base / board["files"]).resolve()
+    if "netlist" in board:
+        if not isinstance(board["netlist"], str):
+            fail("[board] netlist must be a string (a file relative to the project file)",
+                 "netlist")
+        proj.netlist = (base / board["netlist"]).resolve()
+    if "layers" in board:
+        if not isinstance(board["layers"], dict) or not all(
+                isinstance(v, str) for v in board["layers"].values()):
+            fail("[board] layers must map file names to layer names "
+                 "(top, in1.., bottom, profile, drill, soldermask-top, ...)", "layers")
+        proj.layer_map = dict(board["layers"])
+    for key, attr in (("plated", "plated_files"), ("non_plated", "non_plated_files")):
+        if key in board:
+            v = board[key]
+            if isinstance(v, str):
+                v = [v]
+            if not isinstance(v, list) or not all(isinstance(x, str) for x in v):
+                fail(f"[board] {key} must be a file name or a list of file names", key)
+            setattr(proj, attr, list(v))
+    if "size_mm" in board:
+        v = board["size_mm"]
+        if (not isinstance(v, list) or len(v) != 2
+                or not all(isinstance(x, (int, float)) and x > 0 for x in v)):
+            fail("[board] size_mm must be [width, height] in millimetres, both > 0", "size_mm")
+        proj.size_mm = (float(v[0]), float(v[1]))
+
+    volts = _table(data, "voltages", fail)
+    for order, (name, value) in enumerate(volts.items()):
+        try:
+            vr = parse_voltage(value)
+        except ValueError as e:
+            fail(f"[voltages] {name!r}: {e}", name)
+        is_glob = any(ch in name for ch in "*?[")
+        proj.voltage_rules.append(VoltageRule(name, vr, is_glob, order))
+    if not any(r.pattern == "*" for r in proj.voltage_rules):
+        proj.assumptions.append(Assumption(
+            "voltage", 'no "*" fallback in [voltages]: every undeclared net is assumed '
+                       "0..15 V and listed"))
+
+    env = _table(data, "environment", fail)
+    if "altitude_m" in env:
+        a = env["altitude_m"]
+        if isinstance(a, bool) or not isinstance(a, (int, float)) or not (-500 <= a <= 20000):
+            fail("[environment] altitude_m must be a number of metres between -500 and "
+                 f"20000, got {a!r}", "altitude_m")
+        proj.environment.altitude_m = float(a)
+        proj.environment.explicit.add("altitude_m")
+    if "coating" in env:
+        c = env["coating"]
+        if c not in COATINGS:
+            fail(f"[environment] coating must be one of {', '.join(COATINGS)}; got {c!r}",
+                 "coating")
+        proj.environment.coating = c
+        proj.environment.explicit.add("coating")
+    _environment_assumptions(proj)
+
+    stack = _table(data, "stackup", fail)
+    if "thickness_mm" in stack:
+        t = stack["thickness_mm"]
+        if isinstance(t, bool) or not isinstance(t, (int, float)) or not 0.05 <= t <= 20:
+            fail("[stackup] thickness_mm must be a board thickness in mm (0.05..20)",
+                 "thickness_mm")
+        proj.stackup_thickness_mm = float(t)
+    if "copper_um" in stack:
+        t = stack["copper_um"]
+        if isinstance(t, bool) or not isinstance(t, (int, float)) or not 1 <= t <= 1000:
+            fail("[stackup] copper_um must be a copper thickness in micrometres (1..1000)",
+                 "copper_um")
+        proj.stackup_copper_um = float(t)
+
+    rules = _table(data, "rules", fail)
+    if "ignore" in rules:
+        v = rules["ignore"]
+        if not isinstance(v, list) or not all(isinstance(x, str) for x in v):
+            fail("[rules] ignore must be a list of rule ids", "ignore")
+        proj.ignore_rules = list(v)
+    return proj
+
+
+def _table(data: dict, name: str, fail) -> dict:
+    v = data.get(name, {})
+    if not isinstance(v, dict):
+        fail(f"[{name}] must be a table", name)
+    return v
+
+
+def _environment_assumptions(proj: Project) -> None:
+    env = proj.environment
+    if "altitude_m" not in env.explicit:
+        proj.assumptions.append(Assumption(
+            "environment", "altitude not given: assumed 0 m (sea level)"))
+    if "coating" not in env.explicit:
+        proj.assumptions.append(Assumption(
+            "environment", "coating not given: assumed none (bare copper)"))

@@ -23,6 +23,7 @@ files that do not say what they are), ``[board] plated`` / ``non_plated`` (drill
 from __future__ import annotations
 
 import fnmatch
+import re
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -115,6 +116,15 @@ class Project:
         return out
 
 
+def toml_error_line(e: Exception) -> int | None:
+    """The line number a TOML decode error points at, if it says."""
+    line = getattr(e, "lineno", None)
+    if line is None:
+        m = re.search(r"at line (\d+)", str(e))
+        line = int(m.group(1)) if m else None
+    return line
+
+
 def find_project_file(folder: Path) -> Path | None:
     p = folder / PROJECT_FILE_NAME
     return p if p.is_file() else None
@@ -141,8 +151,8 @@ def load_project(path: Path | None) -> Project:
     except UnicodeDecodeError as e:
         raise ProjectFileError("the project file is not UTF-8 text", file=str(path)) from e
     except tomllib.TOMLDecodeError as e:
-        line = getattr(e, "lineno", None)
-        raise ProjectFileError(f"not valid TOML: {e}", file=str(path), line=line) from e
+        raise ProjectFileError(f"not valid TOML: {e}", file=str(path),
+                               line=toml_error_line(e)) from e
     return project_from_data(data, path, text)
 
 

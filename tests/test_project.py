@@ -1,0 +1,87 @@
+"""Project file: the contract shape of issue 2 and its voltage resolution rules."""
+from pathlib import Path
+
+import pytest
+
+from layoutcheck.errors import ProjectFileError
+from layoutcheck.project import load_project
+from layoutcheck.units import VoltageRange, parse_voltage
+
+
+def write(tmp_path: Path, text: str) -> Path:
+    p = tmp_path / "layoutcheck.toml"
+    p.write_text(text, encoding="utf-8")
+    return p
+
+
+CONTRACT = '''
+[board]
+files = "."
+[voltages]
+"HV_BUS" = 340
+"SW_*" = "0..340"
+"*" = "0..15"
+[environment]
+altitude_m = 0
+coating = "none"
+'''
+
+
+def test_contract_shape_loads(tmp_path):
+    proj = load_project(write(tmp_path, CONTRACT))
+    assert proj.board_files == tmp_path.resolve()
+    assert proj.voltage_of("HV_BUS") == (VoltageRange(340, 340), "exact")
+    assert proj.voltage_of("SW_A")[0] == VoltageRange(0, 340)
+    assert proj.voltage_of("IN_A") == (VoltageRange(0, 15), "fallback *")
+    assert proj.environment.coating == "none"
+
+
+def test_exact_beats_glob_and_first_glob_wins(tmp_path):
+    proj = load_project(write(tmp_path, '''
+[voltages]
+"SW_*" = "0..400"
+"S*" = 5
+"SW_A" = 12
+'''))
+    assert proj.voltage_of("SW_A")[0] == VoltageRange(12, 12)      # exact wins
+    assert proj.voltage_of("SW_B")[0] == VoltageRange(0, 400)      # first glob in file
+    assert proj.voltage_of("SX")[0] == VoltageRange(5, 5)
+
+
+def test_no_fallback_gives_0_15_and_assumption(tmp_path):
+    proj = load_project(write(tmp_path, '[voltages]\n"HV" = 400\n'))
+    v, how = proj.voltage_of("LOGIC")
+    assert v == VoltageRange(0, 15) and how == "undeclared"
+    texts = [a.text for a in proj.voltage_assumptions(["HV", "LOGIC"])]
+    assert len(texts) == 1 and "LOGIC" in texts[0]
+
+
+def test_working_voltage_is_largest_difference():
+    # issue 2: "the working voltage between two nets is the largest difference between
+    # their ranges" -- worked by hand: 0..340 against 15 -> 340 - 0... max(340-15, 15-0)=325
+    assert VoltageRange(0, 340).difference_to(VoltageRange(15, 15)) == 325
+    assert VoltageRange(340, 340).difference_to(VoltageRange(-15, 0)) == 355
+
+
+@pytest.mark.parametrize("text,line", [
+    ('[voltages]\n"A" = "lots"\n', 2),
+    ('[environment]\ncoating = "paint"\n', 2),
+    ('[environment]\naltitude_m = "high"\n', 2),
+])
+def test_bad_values_name_file_and_line(tmp_path, text, line):
+    p = write(tmp_path, text)
+    with pytest.raises(ProjectFileError) as e:
+        load_project(p)
+    assert e.value.line == line and str(p) in str(e.value)
+
+
+def test_invalid_toml(tmp_path):
+    with pytest.raises(ProjectFileError) as e:
+        load_project(write(tmp_path, "[voltages\n"))
+    assert e.value.line == 1
+
+
+@pytest.mark.parametrize("value,expected", [(340, (340, 340)), ("0..340", (0, 340)),
+                                            ("-15 .. 15", (-15, 15)), ("12V", (12, 12))])
+def test_parse_voltage(value, expected):
+    assert parse_voltage(value) == VoltageRange(*expected)

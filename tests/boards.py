@@ -1,0 +1,143 @@
+"""Small named boards built directly from shapely geometry (no file readers involved).
+
+Units: millimetres, volts.  Every board here is drawn so that its answers can be worked
+out by hand: axis-aligned rectangles whose gaps are differences of coordinates, and
+circles whose gaps are centre distance minus radii.
+"""
+from __future__ import annotations
+
+import math
+
+import shapely
+from shapely.geometry import LineString, Point, box
+
+from layoutcheck.model import Board, CopperShape, Hole
+from layoutcheck.project import project_from_data
+
+#: quad_segs for test circles: chord sagitta r(1 - cos(pi/(4*256))) < 1 nm for r < 1 mm.
+FINE = 256
+
+
+def rect(x0: float, y0: float, x1: float, y1: float):
+    """Axis-aligned rectangle (mm)."""
+    return box(x0, y0, x1, y1)
+
+
+def disc(cx: float, cy: float, d: float):
+    """Circle of diameter ``d`` (mm), finely flattened (inscribed, error < 1 nm for d < 2)."""
+    return Point(cx, cy).buffer(d / 2.0, quad_segs=FINE)
+
+
+def htrack(x0: float, x1: float, yc: float, width: float):
+    """Horizontal flat-ended track from x0 to x1 centred on y = yc (mm)."""
+    return box(x0, yc - width / 2.0, x1, yc + width / 2.0)
+
+
+def polyline_track(points, width: float):
+    """A track drawn as many flat-ended segments (one shape per segment), mm."""
+    return [LineString([p, q]).buffer(width / 2.0, cap_style="flat")
+            for p, q in zip(points, points[1:])]
+
+
+def cu(geom, layer: str = "top", net: str | None = None, *, component: str | None = None,
+       pin: str | None = None, function: str | None = None, kind: str = "region"):
+    """A :class:`CopperShape` with the given attributes."""
+    return CopperShape(geometry=geom, layer=layer, net=net, component=component, pin=pin,
+                       function=function, kind=kind)
+
+
+def hole(cx: float, cy: float, d: float, *, plated: bool = True,
+         span=("top", "bottom"), net: str | None = None):
+    """A round drilled hole of diameter ``d`` (mm)."""
+    return Hole(geometry=Point(cx, cy).buffer(d / 2.0, quad_segs=32), diameter=d,
+                plated=plated, span=tuple(span), net=net)
+
+
+def make_board(shapes, holes=(), layers=("top", "bottom"), *, has_net_names: bool = True,
+               name: str = "test-board") -> Board:
+    """A :class:`Board` with the given shapes, holes and copper layer names."""
+    return Board(name=name, copper_layers=list(layers), shapes=list(shapes),
+                 holes=list(holes), has_net_names=has_net_names)
+
+
+def project(voltages: dict | None = None, *, altitude_m: float | None = None,
+            coating: str | None = None):
+    """A project with ``[voltages]`` and ``[environment]`` as given."""
+    data: dict = {"voltages": dict(voltages or {})}
+    env = {}
+    if altitude_m is not None:
+        env["altitude_m"] = altitude_m
+    if coating is not None:
+        env["coating"] = coating
+    if env:
+        data["environment"] = env
+    return project_from_data(data, None)
+
+
+# -- named boards ---------------------------------------------------------------------------
+
+def two_tracks(centre_distance: float, width: float = 1.0, layer: str = "top",
+               nets=("HV_BUS", "+15V"), length: float = 20.0) -> Board:
+    """Two parallel horizontal tracks ``width`` wide, centres ``centre_distance`` apart.
+
+    Gap = centre_distance - width (by hand).
+    """
+    a = cu(htrack(0.0, length, 0.0, width), layer, nets[0])
+    b = cu(htrack(0.0, length, centre_distance, width), layer, nets[1])
+    return make_board([a, b], layers=_layers_for(layer), name="two-tracks")
+
+
+def two_discs(centre_distance: float, d: float = 1.6, layer: str = "top",
+              nets=("HV_BUS", "+15V"), pads: bool = False) -> Board:
+    """Two round pads (or round copper) of diameter ``d``; gap = centre_distance - d."""
+    kw = dict(component="Q1", function="ComponentPad") if pads else {}
+    a = cu(disc(0.0, 0.0, d), layer, nets[0], **({**kw, "pin": "1"} if pads else {}))
+    b = cu(disc(centre_distance, 0.0, d), layer, nets[1],
+           **({**kw, "pin": "2"} if pads else {}))
+    return make_board([a, b], layers=_layers_for(layer), name="two-discs")
+
+
+def pad_near_track(gap: float, layer: str = "top") -> Board:
+    """A 2 x 2 mm pad of HV_BUS (pin Q1.1) ``gap`` mm above a 1 mm track of +15V.
+
+    Track spans y = -0.5..0.5 for x = 0..20; pad spans x = 9..11, y = 0.5+gap..2.5+gap.
+    """
+    track = cu(htrack(0.0, 20.0, 0.0, 1.0), layer, "+15V")
+    pad = cu(rect(9.0, 0.5 + gap, 11.0, 2.5 + gap), layer, "HV_BUS", component="Q1",
+             pin="1", function="SMDPad")
+    return make_board([track, pad], layers=_layers_for(layer), name="pad-near-track")
+
+
+def two_places(gap: float, separation: float = 30.0) -> Board:
+    """HV_BUS comes within ``gap`` of +15V at two spots ``separation`` mm apart.
+
+    +15V is a long track y = -0.5..0.5; HV_BUS is two 2 x 2 mm blocks joined by a track
+    far above (y = 20), so it is one net with two close approaches.
+    """
+    lv = cu(htrack(-5.0, separation + 7.0, 0.0, 1.0), "top", "+15V")
+    y0 = 0.5 + gap
+    shapes = [lv,
+              cu(rect(0.0, y0, 2.0, 21.0), "top", "HV_BUS"),
+              cu(rect(separation, y0, separation + 2.0, 21.0), "top", "HV_BUS"),
+              cu(rect(0.0, 19.0, separation + 2.0, 21.0), "top", "HV_BUS")]
+    return make_board(shapes, name="two-places")
+
+
+def _layers_for(layer: str):
+    if layer in ("top", "bottom"):
+        return ("top", "bottom")
+    n = int(layer[2:]) if layer.startswith("in") else 1
+    return ("top",) + tuple(f"in{i}" for i in range(1, n + 1)) + ("bottom",)
+
+
+def hand_gap_rects(a, b) -> float:
+    """Distance between two axis-aligned rectangles (x0, y0, x1, y1), by hand formula:
+    sqrt(dx^2 + dy^2) with dx, dy the gaps along each axis (0 if they overlap)."""
+    dx = max(0.0, max(a[0], b[0]) - min(a[2], b[2]))
+    dy = max(0.0, max(a[1], b[1]) - min(a[3], b[3]))
+    return math.hypot(dx, dy)
+
+
+def shapely_gap(g1, g2) -> float:
+    """shapely's own distance between two independently built geometries (mm)."""
+    return float(shapely.distance(g1, g2))

@@ -15,6 +15,12 @@ Contract shape (keys may be added, never changed)::
 An exact name beats a glob; among globs the first in the file wins.  Without a ``"*"`` key
 undeclared nets get 0..15 V and each is listed as an assumption.
 
+A net that rides on another (a bootstrap supply or high-side gate on the switch node) may be
+declared relative to it: ``"VB_A" = { on = "SW_A", volts = 15 }`` or
+``"HO_A" = { on = "SW_A", volts = "0..15" }``.  Its absolute range is the other net's
+range plus ``volts``; between two nets that ride on the same node the working voltage is
+the difference of their offsets, not of their absolute ranges.
+
 Further keys read here: ``[board] netlist``, ``[board] layers`` (file name -> layer, for
 files that do not say what they are), ``[board] plated`` / ``non_plated`` (drill file names),
 ``[board] size_mm`` (used when there is no profile layer), ``[stackup] thickness_mm``,
@@ -50,9 +56,10 @@ class Environment:
 @dataclass
 class VoltageRule:
     pattern: str
-    voltage: VoltageRange
+    voltage: VoltageRange          # absolute range, or the offset when ``on`` is set
     is_glob: bool
     order: int
+    on: str | None = None          # the net this one rides on
 
 
 @dataclass
@@ -80,15 +87,10 @@ class Project:
     assumptions: list[Assumption] = field(default_factory=list)
 
     # -- voltages ---------------------------------------------------------------------
-    def voltage_of(self, net: str) -> tuple[VoltageRange, str]:
-        """The voltage range (V) of ``net`` and how it was found.
-
-        The second value is ``"exact"``, ``"glob <pattern>"``, ``"fallback *"`` or
-        ``"undeclared"``; the last two mean the voltage is an assumption.
-        """
+    def _rule_for(self, net: str) -> tuple[VoltageRule | None, str]:
         for rule in self.voltage_rules:
             if not rule.is_glob and rule.pattern == net:
-                return rule.voltage, "exact"
+                return rule, "exact"
         fallback = None
         for rule in self.voltage_rules:
             if rule.is_glob:
@@ -97,10 +99,56 @@ class Project:
                         fallback = rule
                     continue
                 if fnmatch.fnmatchcase(net, rule.pattern):
-                    return rule.voltage, f"glob {rule.pattern}"
+                    return rule, f"glob {rule.pattern}"
         if fallback is not None:
-            return fallback.voltage, "fallback *"
-        return DEFAULT_UNDECLARED, "undeclared"
+            return fallback, "fallback *"
+        return None, "undeclared"
+
+    def _chain(self, net: str) -> tuple[str, VoltageRange, VoltageRange]:
+        """(root net, offset of ``net`` above the root, absolute range of the root)."""
+        lo = hi = 0.0
+        seen = [net]
+        cur = net
+        while True:
+            rule, _ = self._rule_for(cur)
+            if rule is None:
+                return cur, VoltageRange(lo, hi), DEFAULT_UNDECLARED
+            if rule.on is None:
+                return cur, VoltageRange(lo, hi), rule.voltage
+            lo += rule.voltage.lo
+            hi += rule.voltage.hi
+            cur = rule.on
+            if cur in seen:
+                raise ProjectFileError(
+                    "[voltages] nets ride on each other in a circle: " +
+                    " -> ".join(seen + [cur]), file=str(self.path or "<project>"))
+            seen.append(cur)
+
+    def voltage_of(self, net: str) -> tuple[VoltageRange, str]:
+        """The absolute voltage range (V) of ``net`` and how it was found.
+
+        The second value is ``"exact"``, ``"glob <pattern>"``, ``"fallback *"`` or
+        ``"undeclared"``; the last two mean the voltage is an assumption.
+        """
+        rule, how = self._rule_for(net)
+        if rule is None:
+            return DEFAULT_UNDECLARED, how
+        if rule.on is None:
+            return rule.voltage, how
+        _, off, root = self._chain(net)
+        return VoltageRange(root.lo + off.lo, root.hi + off.hi), how
+
+    def working_voltage(self, a: str, b: str) -> float:
+        """Largest voltage (V) between nets ``a`` and ``b``.
+
+        Nets riding on the same node (``on = ...``) differ by their offsets only; any other
+        pair by the largest difference between their absolute ranges.
+        """
+        ra, oa, _ = self._chain(a)
+        rb, ob, _ = self._chain(b)
+        if ra == rb:
+            return oa.difference_to(ob)
+        return self.voltage_of(a)[0].difference_to(self.voltage_of(b)[0])
 
     def voltage_assumptions(self, nets) -> list[Assumption]:
         """One assumption per net whose voltage came from ``"*"`` or the built-in default."""
@@ -208,12 +256,23 @@ def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
 
     volts = _table(data, "voltages", fail)
     for order, (name, value) in enumerate(volts.items()):
+        on = None
+        if isinstance(value, dict):
+            if set(value) - {"on", "volts"} or not isinstance(value.get("on"), str) \
+                    or "volts" not in value:
+                fail(f"[voltages] {name!r}: a relative voltage is written "
+                     '{ on = "<net>", volts = <number or "lo..hi"> }', name)
+            on = value["on"]
+            value = value["volts"]
         try:
             vr = parse_voltage(value)
         except ValueError as e:
             fail(f"[voltages] {name!r}: {e}", name)
         is_glob = any(ch in name for ch in "*?[")
-        proj.voltage_rules.append(VoltageRule(name, vr, is_glob, order))
+        proj.voltage_rules.append(VoltageRule(name, vr, is_glob, order, on))
+    for rule in proj.voltage_rules:
+        if rule.on is not None:
+            proj._chain(rule.pattern if not rule.is_glob else rule.on)
     if not any(r.pattern == "*" for r in proj.voltage_rules):
         proj.assumptions.append(Assumption(
             "voltage", 'no "*" fallback in [voltages]: every undeclared net is assumed '

@@ -85,3 +85,27 @@ def test_invalid_toml(tmp_path):
                                             ("-15 .. 15", (-15, 15)), ("12V", (12, 12))])
 def test_parse_voltage(value, expected):
     assert parse_voltage(value) == VoltageRange(*expected)
+
+
+def test_relative_voltage_rides_on_switch_node(tmp_path):
+    """A bootstrap supply sits 15 V above the switch node it rides on (common practice for
+    bootstrap gate drivers): 15 V to the switch node, bus + 15 V to ground."""
+    proj = load_project(write(tmp_path, '''
+[voltages]
+"SW_A" = "0..400"
+"VB_A" = { on = "SW_A", volts = 15 }
+"HO_A" = { on = "SW_A", volts = "0..15" }
+"GND" = 0
+'''))
+    assert proj.voltage_of("VB_A")[0] == VoltageRange(15, 415)
+    assert proj.working_voltage("VB_A", "SW_A") == 15
+    assert proj.working_voltage("HO_A", "VB_A") == 15
+    assert proj.working_voltage("VB_A", "GND") == 415
+    assert proj.working_voltage("SW_A", "GND") == 400
+
+
+def test_relative_voltage_cycle_is_an_error(tmp_path):
+    with pytest.raises(ProjectFileError) as e:
+        load_project(write(tmp_path, '[voltages]\n"A" = { on = "B", volts = 1 }\n'
+                                     '"B" = { on = "A", volts = 1 }\n'))
+    assert "circle" in str(e.value)

@@ -1,0 +1,84 @@
+"""JSON report: one object, schema ``layoutcheck-report/1`` (extend, never break).
+
+Lengths in millimetres, voltages in volts; floats rounded to 0.1 um / 1 mV so that the same
+input gives the same bytes.
+"""
+from __future__ import annotations
+
+import json
+import math
+from typing import Any
+
+from .caution import CAUTION
+
+SCHEMA = "layoutcheck-report/1"
+
+
+def _r(v, nd=4):
+    if v is None:
+        return None
+    if isinstance(v, float):
+        if not math.isfinite(v):
+            return None
+        v = round(v, nd)
+        return 0.0 if v == 0 else v
+    return v
+
+
+def _pt(p):
+    if p is None:
+        return None
+    return {"x_mm": _r(float(p[0])), "y_mm": _r(float(p[1]))}
+
+
+def _clean(v: Any):
+    if isinstance(v, float):
+        return _r(v)
+    if isinstance(v, dict):
+        return {k: _clean(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_clean(x) for x in v]
+    return v
+
+
+def report_dict(review) -> dict:
+    """The report as plain data (see the module docstring for the schema)."""
+    b = review.board
+    size = b.size_mm
+    findings = []
+    for f in review.findings:
+        d = {
+            "rule": f.rule, "severity": f.severity, "layer": f.layer, "nets": list(f.nets),
+            "measured_mm": _r(f.measured_mm), "required_mm": _r(f.required_mm),
+            "voltage_v": _r(f.voltage_v, 3), "basis": f.basis, "where": _pt(f.where),
+            "to": _pt(f.to), "message": f.message,
+        }
+        for k, v in f.extra.items():
+            d[k] = _clean(v)
+        findings.append(d)
+    summary = {"errors": sum(f.severity == "error" for f in review.findings),
+               "warnings": sum(f.severity == "warning" for f in review.findings),
+               "infos": sum(f.severity == "info" for f in review.findings)}
+    out = {
+        "schema": SCHEMA,
+        "board": {
+            "name": b.name,
+            "layers": [{"name": l.name, "kind": l.kind, "side": l.side,
+                        "file": l.source} for l in b.layers],
+            "nets": sorted(review.graph.nets),
+            "components": sorted(b.components),
+            "size_mm": [_r(size[0]), _r(size[1])] if size else None,
+            "floating_islands": len(review.graph.floating),
+        },
+        "assumptions": [{"topic": a.topic, "text": a.text} for a in review.assumptions],
+        "findings": findings,
+        "summary": summary,
+        "rules_run": list(review.rules_run),
+        "caution": CAUTION,
+    }
+    return out
+
+
+def render(review) -> str:
+    """The JSON text (UTF-8, two-space indent, trailing newline)."""
+    return json.dumps(report_dict(review), indent=2, ensure_ascii=False) + "\n"

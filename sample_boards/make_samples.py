@@ -1,0 +1,65 @@
+"""Regenerate the sample boards: ``python sample_boards/make_samples.py``.
+
+Writes ``fullbridge-rev-a/`` and ``fullbridge-rev-b/`` beside this file: Gerber X2 copper
+and profile layers, the plated and non-plated NC drill files and ``layoutcheck.toml``
+(``fullbridge.PROJECT_TEXT``, the same text for both revisions).
+Before writing, the spacing of each revision is checked with shapely against the design's
+own targets (see ``fullbridge.spacing_violations``): rev-a must show exactly the four
+planted problems, rev-b none.  Output is byte-for-byte deterministic.
+
+Invented demo data.
+"""
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+
+import fullbridge  # noqa: E402
+from layoutcheck.writers.drill import write_drill  # noqa: E402
+from layoutcheck.writers.gerber import write_gerbers  # noqa: E402
+
+
+def check(design, rev: str) -> None:
+    """Raise ``SystemExit`` unless rev-a shows exactly the planted problems and rev-b none."""
+    groups = fullbridge.classify(fullbridge.spacing_violations(design))
+    if rev == "b":
+        if groups:
+            raise SystemExit(f"rev-b has spacing problems: {groups}")
+        return
+    if None in groups:
+        raise SystemExit(f"rev-a has unplanned spacing problems: {groups[None]}")
+    for pid, (_layer, nets, gap, _area) in fullbridge.PLANTED.items():
+        found = groups.get(pid)
+        if not found:
+            raise SystemExit(f"rev-a: planted problem {pid} ({nets}) is missing")
+        smallest = min(v.gap for v in found)
+        if abs(smallest - gap) > 0.01:
+            raise SystemExit(f"rev-a: planted problem {pid} gap is {smallest:.3f} mm, "
+                             f"documented {gap} mm")
+
+
+def make(rev: str, root: Path = HERE) -> list[Path]:
+    """Build, check and write one revision; returns the files written (sorted)."""
+    design = fullbridge.build(rev)
+    check(design, rev)
+    out = root / design.name
+    out.mkdir(parents=True, exist_ok=True)
+    for old in list(out.glob("*.gbr")) + list(out.glob("*.drl")):
+        old.unlink()
+    paths = write_gerbers(design, out) + write_drill(design, out)
+    toml = out / "layoutcheck.toml"
+    toml.write_text(fullbridge.PROJECT_TEXT, encoding="utf-8", newline="\n")
+    return sorted(paths + [toml])
+
+
+def main() -> None:
+    for rev in ("a", "b"):
+        for p in make(rev):
+            print(p.relative_to(HERE))
+
+
+if __name__ == "__main__":
+    main()

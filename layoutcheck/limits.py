@@ -27,6 +27,7 @@ class Limits:
     max_zip_ratio: float = 500.0             # expanded / compressed per member
     max_drill_hits: int = 2_000_000
     max_arc_segments: int = 10_000           # chords in one flattened arc
+    max_total_vertices: int = 50_000_000     # polygon vertices one file may create
 
 
 DEFAULT_LIMITS = Limits()

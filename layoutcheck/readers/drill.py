@@ -21,7 +21,7 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from ..errors import InputFileError, ResourceLimitError
+from ..errors import InputFileError, LayoutcheckError, ResourceLimitError
 from ..limits import DEFAULT_LIMITS, Limits
 from .drill_gerber import drill_from_gerber
 from .drill_parser import DrillReader
@@ -55,9 +55,28 @@ def parse_drill(text: str, name: str, limits: Limits = DEFAULT_LIMITS) -> DrillF
     ------
     InputFileError
         Malformed input (with file and line).  ``UnsupportedFeatureError`` for codes this
-        reader does not implement, ``ResourceLimitError`` when a limit is exceeded.
+        reader does not implement, ``ResourceLimitError`` when a limit is exceeded
+        (including text longer than ``limits.max_file_bytes`` characters).
+
+    Notes
+    -----
+    Each known way for bad input to fail is turned into a clear error where it arises.  As
+    a last resort, any other exception (a reader bug met on unforeseen input) is re-raised
+    as ``InputFileError("internal reader failure on this input: <type>: <message>")`` with
+    the file and the line being read, chained to the original; such an error means the
+    reader needs a fix.
     """
-    return DrillReader(name, limits).run(text)
+    if len(text) > limits.max_file_bytes:
+        raise ResourceLimitError(f"the text is {len(text)} characters; at most "
+                                 f"{limits.max_file_bytes} allowed (max_file_bytes)", file=name)
+    reader = DrillReader(name, limits)
+    try:
+        return reader.run(text)
+    except LayoutcheckError:
+        raise
+    except Exception as exc:  # last resort; see Notes
+        raise InputFileError(f"internal reader failure on this input: {type(exc).__name__}: "
+                             f"{str(exc)[:200]}", file=name, line=reader.line or None) from exc
 
 
 def read_drill(path, limits: Limits = DEFAULT_LIMITS) -> DrillFile:

@@ -33,11 +33,29 @@ DEFAULT_DIGITS = {INCH: (2, 4), METRIC: (3, 3)}
 #: present (leading dropped).  ``keep``: both kept (full digit strings; read like TZ).
 ZERO_MODES = ("LZ", "TZ", "keep")
 
-_NUMBER = re.compile(r"^([+-]?)(\d*)(\.?)(\d*)$")
+# groups: sign, integer digits, "." or None, decimal digits or None.  Written without
+# overlapping repeats so that a failing match on a long digit string is linear.
+_NUMBER = re.compile(r"^([+-]?)(\d*)(?:(\.)(\d*))?$")
 _TEMPLATE = re.compile(r"^(0+)\.(0+)$")
 _FORMAT_COMMENT = re.compile(
-    r"FORMAT\s*=\s*\{\s*([\d-]+)\s*:\s*([\d-]+)\s*/([^}]*)\}", re.IGNORECASE)
+    r"FORMAT\s*=\s*\{\s*([\d-]+)\s*:\s*([\d-]+)\s*/([^{}]*)\}", re.IGNORECASE)
+# ("[^{}]" not "[^}]": a search from each "FORMAT={" then stops at the next "{", so a long
+# comment of repeated openings without "}" is scanned in linear, not quadratic, time)
 _FILE_FORMAT_COMMENT = re.compile(r"^FILE_FORMAT\s*=\s*(\d+)\s*:\s*(\d+)\s*$", re.IGNORECASE)
+
+
+#: Most digits a format may give the integer or the decimal part.  Real formats use 2 to 6
+#: (2.4 inch, 3.3 metric...); the bound keeps a hostile count (a billion digits) from
+#: building a number of that many digits.
+MAX_FORMAT_DIGITS = 9
+
+
+def _digit_counts(ints: str, decs: str, where: str) -> tuple[int, int]:
+    """``(ints, decs)`` as whole numbers; ``ValueError`` beyond :data:`MAX_FORMAT_DIGITS`."""
+    if len(ints.lstrip("0")) > 1 or len(decs.lstrip("0")) > 1:  # 10 or more
+        raise ValueError(f"{where} gives {ints[:12]}:{decs[:12]} digits; expected at most "
+                         f"{MAX_FORMAT_DIGITS} integer and {MAX_FORMAT_DIGITS} decimal digits")
+    return int(ints), int(decs)
 
 
 @dataclass
@@ -70,7 +88,8 @@ def parse_units_line(code: str) -> FormatStatement:
             continue
         m = _TEMPLATE.match(part)
         if m:
-            st.digits = (len(m.group(1)), len(m.group(2)))
+            st.digits = _digit_counts(str(len(m.group(1))), str(len(m.group(2))),
+                                      f"the {head} digit template")
             continue
         if part == "":
             continue
@@ -83,14 +102,15 @@ def parse_format_comment(text: str) -> FormatStatement | None:
     """Read a ``FORMAT={3:3/ absolute / metric / suppress leading zeros}`` comment.
 
     Returns ``None`` when the comment is not of this kind.  ``-:-`` digits (decimal
-    coordinates) state no digit counts.
+    coordinates) state no digit counts.  Raises ``ValueError`` for digit counts above
+    :data:`MAX_FORMAT_DIGITS`.
     """
     m = _FORMAT_COMMENT.search(text)
     if not m:
         return None
     st = FormatStatement()
     if m.group(1).isdigit() and m.group(2).isdigit():
-        st.digits = (int(m.group(1)), int(m.group(2)))
+        st.digits = _digit_counts(m.group(1), m.group(2), "the FORMAT comment")
     for word in (w.strip().lower() for w in m.group(3).split("/")):
         if word == "absolute":
             st.incremental = False
@@ -110,11 +130,15 @@ def parse_format_comment(text: str) -> FormatStatement | None:
 
 
 def parse_file_format_comment(text: str) -> FormatStatement | None:
-    """Read a ``FILE_FORMAT=2:5`` comment (digit counts only); ``None`` if not one."""
+    """Read a ``FILE_FORMAT=2:5`` comment (digit counts only); ``None`` if not one.
+
+    Raises ``ValueError`` for digit counts above :data:`MAX_FORMAT_DIGITS`.
+    """
     m = _FILE_FORMAT_COMMENT.match(text.strip())
     if not m:
         return None
-    return FormatStatement(digits=(int(m.group(1)), int(m.group(2))))
+    return FormatStatement(digits=_digit_counts(m.group(1), m.group(2),
+                                                "the FILE_FORMAT comment"))
 
 
 @dataclass

@@ -27,6 +27,11 @@ ARC_RADIUS_TOL_MM = 0.005
 ARC_RADIUS_TOL_REL = 0.002
 
 
+#: Smallest hole diameter (mm) read: a nanometre.  Below it a hit circle would collapse
+#: when placed at board coordinates (doubles hold about 16 significant digits).
+MIN_TOOL_DIAMETER_MM = 1e-6
+
+
 class ArcError(ValueError):
     """An arc whose centre cannot be found from the words given."""
 

@@ -14,6 +14,7 @@ from shapely.geometry import MultiPolygon, Point, Polygon
 from ..errors import InputFileError, UnsupportedFeatureError
 from ..geometry import arcs
 from ..model import Assumption
+from .drill_geometry import MIN_TOOL_DIAMETER_MM
 from .drill_plating import file_function
 from .gerber.types import GerberFile, GraphicObject
 from .holes import DrillFile, DrillHole
@@ -83,9 +84,10 @@ def _hole(obj: GraphicObject, name: str, plated: bool, basis: str,
         raise UnsupportedFeatureError(f"{obj.kind} with aperture {obj.aperture or '?'} which "
                                       f"is not a plain circle; drill layers use circle "
                                       f"apertures only", **where)
-    if not d > 0:
+    if not d >= MIN_TOOL_DIAMETER_MM:
         raise InputFileError(f"{obj.kind} with aperture {obj.aperture or '?'} of diameter "
-                             f"{d:g} mm; expected a hole diameter above 0", **where)
+                             f"{d:g} mm; expected a hole diameter above 0 (at least "
+                             f"{MIN_TOOL_DIAMETER_MM:g} mm)", **where)
     func = obj.attributes.get(".AperFunction")
     function = func[0] if func else None
     net = None

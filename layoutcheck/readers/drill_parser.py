@@ -6,6 +6,7 @@ Units: every coordinate and size is converted to millimetres as it is read (see
 """
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass
 
@@ -17,23 +18,42 @@ from ..limits import Limits
 from ..model import Assumption
 from .drill_format import (INCH, METRIC, NumberFormat, parse_file_format_comment,
                            parse_format_comment, parse_units_line)
-from .drill_geometry import (ArcError, HoleShape, build_geometry, centre_from_offsets,
-                             centre_from_radius)
+from .drill_geometry import (MIN_TOOL_DIAMETER_MM, ArcError, HoleShape, build_geometry,
+                             centre_from_offsets, centre_from_radius)
 from .drill_plating import (FileFunction, PlatingClue, aper_function_clue, file_function,
                             hole_plating, parse_attribute_comment, plating_from_name,
                             type_comment)
+from .gerber.build import stroke_vertices, vertex_budget
 from .holes import DrillFile, DrillHole
 
 _WORD = re.compile(r"([A-Z])([^A-Z]*)")
-_NUMERIC = re.compile(r"^[+-]?(\d+\.?\d*|\.\d+)$")
+# number patterns without overlapping repeats ("\d+\.?\d*" is quadratic when it fails)
+_NUMERIC = re.compile(r"^[+-]?(\d+(?:\.\d*)?|\.\d+)$")
 _INT = re.compile(r"^\d+$")
-_HIT_LINE = re.compile(r"^(?:X([+-]?(?:\d+\.?\d*|\.\d+)))?(?:Y([+-]?(?:\d+\.?\d*|\.\d+)))?$")
+_HIT_LINE = re.compile(r"^(?:X([+-]?(?:\d+(?:\.\d*)?|\.\d+)))?(?:Y([+-]?(?:\d+(?:\.\d*)?|\.\d+)))?$")
 _KEYWORD = re.compile(r"^(?:[A-Z]{2,}|[A-Z],)")
 _MESSAGE = re.compile(r"^\s*M4[57](?!\d)", re.IGNORECASE)
 _TOOL_FIELDS = "CFSBHZ"
+_LINE_BREAK = re.compile(r"\r\n|\r|\n")
+#: Most significant digits of a whole-number word (T, G, M, R, P).  Real files use at most
+#: 4; the bound keeps Python's int conversion (4300 digits) out of reach.
+MAX_WORD_DIGITS = 9
+#: Largest rout arc radius (mm).  No board arc comes near it; far beyond it (about
+#: 4e12 mm) the chord count formula of :mod:`layoutcheck.geometry.arcs` breaks down.
+MAX_ARC_RADIUS_MM = 1e9
 _PATTERN_CODES = {25: "pattern start", 1: "pattern end", 2: "pattern repeat",
                   8: "end of step and repeat", 70: "axis swap", 80: "X mirror",
                   90: "Y mirror"}
+
+
+def _lines(text: str):
+    """The lines of ``text`` one at a time (lazily: a limit reached early stops the read)."""
+    pos = 0
+    for m in _LINE_BREAK.finditer(text):
+        yield text[pos:m.start()]
+        pos = m.end()
+    if pos < len(text):
+        yield text[pos:]
 
 
 @dataclass
@@ -85,6 +105,9 @@ class DrillReader:
         self.hole_tools: list[_Tool] = []
         self.hole_lines: list[int] = []
         self.file_units: str | None = None
+        self.vertices = 0                      # polygon vertices of the holes so far
+        self.max_vertices = vertex_budget(limits)
+        self._circle_vertices: dict[float, int] = {}
 
     # -- helpers ----------------------------------------------------------------------
     def err(self, message: str, cls=InputFileError):
@@ -99,7 +122,9 @@ class DrillReader:
     def run(self, text: str) -> DrillFile:
         if text.startswith("\ufeff"):
             text = text[1:]
-        for lineno, raw in enumerate(text.splitlines(), 1):
+        # lines end in CR LF, CR or LF; str.splitlines would also split on form feeds and
+        # Unicode separators and so shift every line number after them
+        for lineno, raw in enumerate(_lines(text), 1):
             self.line = lineno
             code, sep, comment = raw.partition(";")
             code = code.strip()
@@ -181,7 +206,10 @@ class DrillReader:
             self.type_clue = clue
             self.types_seen.setdefault(clue.plated, clue.basis)
             return
-        st = parse_format_comment(text) or parse_file_format_comment(text)
+        try:
+            st = parse_format_comment(text) or parse_file_format_comment(text)
+        except ValueError as exc:
+            raise self.err(f"format comment {text[:60]!r}: {exc}") from exc
         if st is not None:
             self.fmt.apply(st, self.line, from_comment=True)
             if st.units and self.file_units is None:
@@ -200,12 +228,21 @@ class DrillReader:
         if pos != len(code) or not toks:
             raise self.err(f"cannot read {code!r}: expected words such as T1, X1.5Y2.0, G85, "
                            f"M30 (a letter followed by a number)")
-        for letter, raw in toks:
+        for k, (letter, raw) in enumerate(toks):
             ok = _INT.match(raw) if letter in "GMTRP" else _NUMERIC.match(raw)
             if not ok:
-                raise self.err(f"unreadable word {letter}{raw!r} in {code!r}: expected "
-                               f"{'a whole number' if letter in 'GMTRP' else 'a number'} "
-                               f"after {letter}")
+                raise self.err(f"unreadable word {letter}{raw[:20]!r} in {code[:60]!r}: "
+                               f"expected {'a whole number' if letter in 'GMTRP' else 'a number'}"
+                               f" after {letter}")
+            if letter in "GMTRP" and len(raw.lstrip("0")) > MAX_WORD_DIGITS:
+                if letter == "R":
+                    raise self.err(f"R repeat count of {len(raw.lstrip('0'))} digits exceeds "
+                                   f"{self.limits.max_drill_hits} holes (max_drill_hits)",
+                                   ResourceLimitError)
+                raise self.err(f"{letter} followed by {len(raw.lstrip('0'))} digits; expected "
+                               f"a whole number of at most {MAX_WORD_DIGITS} digits")
+            if letter in "GMTRP" and len(raw) > MAX_WORD_DIGITS:  # only leading zeros extra
+                toks[k] = (letter, raw.lstrip("0") or "0")
         return toks
 
     def _words(self, code: str) -> None:
@@ -339,7 +376,11 @@ class DrillReader:
         except ValueError as exc:
             raise self.err(f"tool T{number} diameter: {exc}") from exc
         if not d > 0:
-            raise self.err(f"tool T{number} has diameter C{raw}; expected a diameter above 0")
+            raise self.err(f"tool T{number} has diameter C{raw[:20]}; expected a diameter "
+                           f"above 0")
+        if d < MIN_TOOL_DIAMETER_MM:
+            raise self.err(f"tool T{number} has diameter {d:g} mm; expected at least "
+                           f"{MIN_TOOL_DIAMETER_MM:g} mm (no drill is smaller; wrong units?)")
         if d > self.limits.max_aperture_mm:
             raise self.err(f"tool T{number} diameter {d:g} mm is over the "
                            f"{self.limits.max_aperture_mm:g} mm limit (max_aperture_mm)",
@@ -375,10 +416,28 @@ class DrillReader:
                            f"diameter; expected T{n}C<diameter> in the header or body")
         return tool
 
+    def _hit_vertices(self, diameter: float) -> int:
+        """Vertices of one hit circle of ``diameter`` mm (as build_geometry makes it)."""
+        n = self._circle_vertices.get(diameter)
+        if n is None:
+            n = self._circle_vertices[diameter] = max(
+                arcs.segments_for(diameter / 2, 2 * math.pi), arcs.MIN_CIRCLE_SEGMENTS) + 1
+        return n
+
+    def _charge(self, n: int) -> None:
+        """Count ``n`` more polygon vertices; ResourceLimitError past the file's budget."""
+        self.vertices += n
+        if self.vertices > self.max_vertices:
+            raise self.err(f"the holes need more than {self.max_vertices} polygon vertices "
+                           f"(limit max_total_vertices); too many or too large holes for one "
+                           f"file", ResourceLimitError)
+
     def _add(self, coords: np.ndarray, tool: _Tool, is_slot: bool, line: int) -> None:
         if len(self.shapes) >= self.limits.max_drill_hits:
             raise self.err(f"more than {self.limits.max_drill_hits} holes (max_drill_hits)",
                            ResourceLimitError)
+        self._charge(stroke_vertices(len(coords), tool.diameter / 2) if is_slot
+                     else self._hit_vertices(tool.diameter))
         self.shapes.append(HoleShape(coords, tool.diameter, is_slot))
         self.hole_tools.append(tool)
         self.hole_lines.append(line)
@@ -406,6 +465,8 @@ class DrillReader:
         dx = self._num("X", words["X"]) if "X" in words else 0.0
         dy = self._num("Y", words["Y"]) if "Y" in words else 0.0
         self._check_point(self.x + count * dx, self.y + count * dy)
+        if self.vertices + count * self._hit_vertices(tool.diameter) > self.max_vertices:
+            self._charge(count * self._hit_vertices(tool.diameter))  # raises
         for k in range(1, count + 1):
             self._add(np.array([[self.x + k * dx, self.y + k * dy]]), tool, False, self.line)
         self.x, self.y = self.x + count * dx, self.y + count * dy
@@ -534,7 +595,17 @@ class DrillReader:
                 raise ArcError("expected A<radius> or I/J centre offsets")
         except ArcError as exc:
             raise self.err(f"G0{self.motion} arc: {exc}") from exc
+        radius = max(math.hypot(start[0] - centre[0], start[1] - centre[1]),
+                     math.hypot(end[0] - centre[0], end[1] - centre[1]))
+        if not radius <= MAX_ARC_RADIUS_MM:
+            raise self.err(f"G0{self.motion} arc of radius {radius:g} mm; expected at most "
+                           f"{MAX_ARC_RADIUS_MM:g} mm", ResourceLimitError)
         pts = arcs.arc_points(start, end, centre, clockwise)
+        reach = float(np.abs(pts).max())
+        if reach > self.limits.max_coordinate_mm:
+            raise self.err(f"G0{self.motion} arc reaches {reach:g} mm from the origin; "
+                           f"expected at most {self.limits.max_coordinate_mm:g} mm "
+                           f"(max_coordinate_mm)", ResourceLimitError)
         if len(pts) - 1 > self.limits.max_arc_segments:
             raise self.err(f"arc needs {len(pts) - 1} chords, over max_arc_segments",
                            ResourceLimitError)

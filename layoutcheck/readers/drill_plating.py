@@ -15,7 +15,9 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-_ATTRIBUTE = re.compile(r"^#@!\s*(TF|TA|TO|TD)\s*(\.?[A-Za-z_$][\w.$]*)?\s*(?:,(.*))?$")
+# "\s*+" (possessive): with no name, two plain "\s*" around it would split a long run of
+# blanks in every possible way before failing (quadratic time)
+_ATTRIBUTE = re.compile(r"^#@!\s*(TF|TA|TO|TD)\s*+(\.?[A-Za-z_$][\w.$]*)?\s*+(?:,(.*))?$")
 _TYPE = re.compile(r"^TYPE\s*=\s*(PLATED|NON_PLATED|NONPLATED|NON-PLATED)\s*$", re.IGNORECASE)
 _NAME_NONPLATED = re.compile(r"(?<![a-z0-9])(npth|non[-_ ]?plated|unplated)(?![a-z0-9])",
                              re.IGNORECASE)

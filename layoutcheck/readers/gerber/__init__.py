@@ -17,11 +17,11 @@ from __future__ import annotations
 import os
 import re
 
-from ...errors import InputFileError, ResourceLimitError
+from ...errors import InputFileError, LayoutcheckError, ResourceLimitError
 from ...limits import DEFAULT_LIMITS, Limits
 from .plot import Plotter
 from .polarity import image, resolve_polarity
-from .tokens import tokenize
+from .tokens import last_text_line, iter_commands
 from .types import GerberFile, GraphicObject
 
 __all__ = ["parse_gerber", "read_gerber", "resolve_polarity", "image", "looks_like_gerber",
@@ -50,9 +50,30 @@ def parse_gerber(text: str, name: str, limits: Limits = DEFAULT_LIMITS) -> Gerbe
     InputFileError
         Malformed or truncated input (with ``file`` and ``line`` set);
         :class:`UnsupportedFeatureError` / :class:`ResourceLimitError` are subclasses.
+        ``ResourceLimitError`` also when ``text`` is longer than ``limits.max_file_bytes``
+        characters.
+
+    Notes
+    -----
+    The text is split into commands lazily, so a file that reaches a safety limit early is
+    refused without reading the rest.  Each known way for bad input to fail is turned into
+    a clear error where it arises.  As a last resort, any other exception (a reader bug
+    met on unforeseen input) is re-raised as ``InputFileError("internal reader failure on
+    this input: <type>: <message>")`` with the file and the line of the command being read,
+    chained to the original; such an error means the reader needs a fix.
     """
-    commands, last_line = tokenize(text, name)
-    return Plotter(name, limits).run(commands, last_line)
+    if len(text) > limits.max_file_bytes:
+        raise ResourceLimitError(f"the text is {len(text)} characters; at most "
+                                 f"{limits.max_file_bytes} allowed (limit max_file_bytes)",
+                                 file=name)
+    plotter = Plotter(name, limits)
+    try:
+        return plotter.run(iter_commands(text, name), last_text_line(text))
+    except LayoutcheckError:
+        raise
+    except Exception as exc:  # last resort; see Notes
+        raise InputFileError(f"internal reader failure on this input: {type(exc).__name__}: "
+                             f"{str(exc)[:200]}", file=name, line=plotter.line or None) from exc
 
 
 def read_gerber(path, limits: Limits = DEFAULT_LIMITS) -> GerberFile:

@@ -19,11 +19,14 @@ from shapely.geometry.base import BaseGeometry
 from ...errors import InputFileError, ResourceLimitError
 from ...geometry import arcs
 from ...limits import Limits
+from .coords import whole_number
 from .macros import Macro, instantiate
 from .types import GraphicObject
 
-_AD = re.compile(r"^(?i:ADD)0*(\d+)([._$a-zA-Z][._$a-zA-Z0-9]*)(?:,(.*))?$", re.S)
-_NUM = re.compile(r"^[+-]?(?:\d+\.?\d*|\.\d+)$")
+# Number patterns are written without overlapping repeats (no "0*\d+", no "\d+\.?\d*"),
+# so a failing match on a long digit string costs linear, not quadratic, time.
+_AD = re.compile(r"^(?i:ADD)(\d+)([._$a-zA-Z][._$a-zA-Z0-9]*)(?:,(.*))?$", re.S)
+_NUM = re.compile(r"^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$")
 
 #: Templates and their allowed parameter counts (last two of C/R/O and P include the
 #: deprecated rectangular hole).
@@ -154,13 +157,16 @@ def standard_shape(template: str, p: list[float], f: float) -> tuple[BaseGeometr
 
 
 def parse_ad(word: str, macros: dict[str, Macro], unit_factor: float, attributes: dict,
-             file: str, line: int, limits: Limits) -> Aperture:
-    """Parse an ``ADD<n><template>[,<params>]`` word into an :class:`Aperture` (mm)."""
+             file: str, line: int, limits: Limits, charge=None) -> Aperture:
+    """Parse an ``ADD<n><template>[,<params>]`` word into an :class:`Aperture` (mm).
+
+    ``charge(n)``, if given, is told the vertices built for a macro aperture (see
+    :func:`.macros.instantiate`)."""
     m = _AD.match(word.replace(" ", ""))
     if not m:
         raise InputFileError(f"saw the aperture definition {word[:60]!r}; expected e.g. "
                              "'ADD10C,0.5'", file=file, line=line)
-    number = int(m.group(1))
+    number = whole_number(m.group(1), "the aperture number", file, line)
     template = m.group(2)
     if number < 10:
         raise InputFileError(f"saw aperture number D{number}; expected 10 or more (D00-D09 "
@@ -178,12 +184,18 @@ def parse_ad(word: str, macros: dict[str, Macro], unit_factor: float, attributes
                                      f"{v:g}; expected sizes >= 0", file=file, line=line)
         if template == "P":
             n = params[1]
-            if n != int(n) or not 3 <= n <= limits.max_polygon_vertices:
+            if not 3 <= n <= limits.max_polygon_vertices or n != int(n):
                 raise InputFileError(f"polygon aperture D{number} has {n:g} vertices; expected "
                                      f"a whole number from 3 to {limits.max_polygon_vertices}",
                                      file=file, line=line)
         size = max([params[0]] + ([params[1]] if template in "RO" else [])) * unit_factor
         _check_size(size, number, file, line, limits)
+        # holes (and anything else) beyond the limit, e.g. a value too large for a double
+        sizes = [v for i, v in enumerate(params) if not (template == "P" and i in (1, 2))]
+        _check_size(max(sizes) * unit_factor, number, file, line, limits)
+        if template == "P" and len(params) > 2 and not math.isfinite(params[2]):
+            raise InputFileError(f"polygon aperture D{number} has the rotation {params[2]}; "
+                                 "expected a finite number of degrees", file=file, line=line)
         shape, has_hole = standard_shape(template, params, unit_factor)
         plain_circle = template == "C" and not has_hole
         return Aperture(number, template, shape, attrs, line,
@@ -193,7 +205,7 @@ def parse_ad(word: str, macros: dict[str, Macro], unit_factor: float, attributes
     if macro is None:
         raise InputFileError(f"aperture D{number} uses the template {template!r}; expected C, "
                              "R, O, P or a macro defined earlier with AM", file=file, line=line)
-    shape = instantiate(macro, params, unit_factor, file, line, limits)
+    shape = instantiate(macro, params, unit_factor, file, line, limits, charge)
     size = 0.0
     if not shape.is_empty:
         x0, y0, x1, y1 = shape.bounds
@@ -212,7 +224,7 @@ def check_scaled_size(ap: Aperture, scale: float, file: str, line: int, limits: 
 
 
 def _check_size(size_mm: float, number: int, file: str, line: int, limits: Limits) -> None:
-    if size_mm > limits.max_aperture_mm:
+    if not size_mm <= limits.max_aperture_mm:  # also catches NaN
         raise ResourceLimitError(f"aperture D{number} is {size_mm:g} mm across; expected at "
                                  f"most {limits.max_aperture_mm:g} mm (limit max_aperture_mm)",
                                  file=file, line=line)

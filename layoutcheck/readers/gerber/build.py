@@ -15,7 +15,58 @@ import shapely
 from shapely.geometry.base import BaseGeometry
 
 from ...geometry import arcs
+from .regions import valid_polygonal
 from .types import GraphicObject
+
+def vertex_budget(limits) -> int:
+    """The per-file vertex budget ``limits.max_total_vertices``.
+
+    A vertex costs about 70 bytes while a file is read (coordinates, GEOS objects, buffers),
+    so the default 50 million is about 3.5 GB -- several times a large real board, whose arcs
+    are flattened to 0.5 um.  Without such a budget a 250 kB file flashing a 1000 mm circle
+    (2221 vertices) 20,000 times takes 3 GB, within every other limit.
+    """
+    return int(limits.max_total_vertices)
+
+
+def stroke_vertices(n_points: int, radius: float) -> int:
+    """Estimated vertices of a centre line of ``n_points`` buffered by ``radius`` (mm) with
+    round caps: both sides plus two half circles at ``arcs.quad_segs_for(radius)``, with a
+    margin for the round joins on the outer side of bends."""
+    qs = arcs.quad_segs_for(radius) if radius > 0 else 1
+    return 3 * n_points + 4 * qs + 2
+
+
+#: A moved shape is checked with ``is_valid`` when its thinnest part (area over largest
+#: extent) is below this fraction of its distance from the origin: only then can rounding
+#: its coordinates to doubles (relative precision 2.2e-16) collapse it.
+COLLAPSE_RATIO = 1e-9
+
+
+def repair_collapsed(geoms: np.ndarray) -> int:
+    """Make valid, in place, the shapes in ``geoms`` (object array, mm) that rounding may
+    have collapsed, and return how many were changed.
+
+    Only shapes far thinner than their distance from the origin (see
+    :data:`COLLAPSE_RATIO`) are tested, so the cost is one vectorised area and bounds pass.
+    A collapsed shape is replaced by its valid polygonal part (often empty): the change is
+    below the floating-point resolution at that position.
+    """
+    if len(geoms) == 0:
+        return 0
+    b = shapely.bounds(geoms)
+    area = shapely.area(geoms)
+    with np.errstate(invalid="ignore"):
+        ext = np.fmax(b[:, 2] - b[:, 0], b[:, 3] - b[:, 1])
+        mag = np.fmax(np.fmax.reduce(np.abs(b), axis=1), 1.0)
+        suspect = ~np.isnan(ext) & (area <= COLLAPSE_RATIO * mag * ext)
+    idx = np.flatnonzero(suspect)
+    if idx.size == 0:
+        return 0
+    bad = idx[~shapely.is_valid(geoms[idx])]
+    for k in bad:
+        geoms[k] = valid_polygonal(geoms[k])
+    return int(bad.size)
 
 
 class GeometryBuilder:
@@ -28,6 +79,8 @@ class GeometryBuilder:
         self._stroke_objs: list[GraphicObject] = []
         self._stroke_coords: list[np.ndarray] = []
         self._stroke_radius: list[float] = []
+        #: shapes made valid by :func:`repair_collapsed` so far
+        self.repaired = 0
 
     def __len__(self) -> int:
         return len(self._flash_objs) + len(self._stroke_objs)
@@ -58,6 +111,7 @@ class GeometryBuilder:
         counts = shapely.get_num_coordinates(shapes)
         offsets = np.repeat(pts, counts, axis=0)
         moved = shapely.transform(shapes, lambda c: c + offsets)
+        self.repaired += repair_collapsed(moved)
         for obj, g in zip(self._flash_objs, moved):
             obj.geometry = g
         self._flash_objs, self._flash_shapes, self._flash_points = [], [], []
@@ -80,6 +134,7 @@ class GeometryBuilder:
         for qs, idx in sorted(groups.items()):
             idx_arr = np.array(idx, dtype=np.intp)
             geoms[idx_arr] = shapely.buffer(paths[idx_arr], radii[idx_arr], quad_segs=max(qs, 1))
+        self.repaired += repair_collapsed(geoms)
         for obj, path, g in zip(self._stroke_objs, paths, geoms):
             obj.path = path
             obj.geometry = g

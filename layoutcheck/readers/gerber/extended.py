@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING
 
 from ...errors import InputFileError, ResourceLimitError, UnsupportedFeatureError
 from .apertures import Aperture, parse_ad
-from .coords import parse_decimal, parse_fs, parse_mo
+from .coords import parse_decimal, parse_fs, parse_mo, whole_number
 from .macros import parse_am
 from .tokens import Word
 
@@ -21,7 +21,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from .plot import Plotter
 
 _SR = re.compile(r"^SR(?:X(\d+))?(?:Y(\d+))?(?:I([-+]?[\d.]+))?(?:J([-+]?[\d.]+))?$")
-_AB = re.compile(r"^ABD0*(\d+)$")
+_AB = re.compile(r"^ABD(\d+)$")  # leading zeros go in whole_number (a "0*\d+" is quadratic)
 _MI = re.compile(r"^MI(?:A([01]))?(?:B([01]))?$")
 _AB_PAIR = re.compile(r"^(?:A([-+]?[\d.]+))?(?:B([-+]?[\d.]+))?$")
 
@@ -60,7 +60,8 @@ def _one(p: "Plotter", w: Word) -> None:
         p.set_units(parse_mo(compact.upper(), p.name, line), False, line)
     elif code == "AD":
         f = p.unit_factor(line)
-        ap = parse_ad(compact, p.macros, f, p.attrs.aperture, p.name, line, p.limits)
+        ap = parse_ad(compact, p.macros, f, p.attrs.aperture, p.name, line, p.limits,
+                      lambda n: p.charge(n, line))
         _define(p, ap, line)
     elif code == "AB":
         _block(p, compact, line)
@@ -122,7 +123,7 @@ def _block(p: "Plotter", compact: str, line: int) -> None:
     m = _AB.match(compact.upper())
     if not m:
         p.fail(f"saw {compact!r}; expected %ABD<n>*% to open or %AB*% to close a block", line)
-    number = int(m.group(1))
+    number = whole_number(m.group(1), "the block aperture number", p.name, line)
     if number < 10:
         p.fail(f"saw block aperture number D{number}; expected 10 or more", line)
     if p.region is not None:
@@ -151,8 +152,13 @@ def _step_repeat(p: "Plotter", compact: str, line: int) -> None:
             p.note("%SR*% with no open step-and-repeat ignored", line)
         p.close_sr(line)
         return
-    nx = int(m.group(1) or 1)
-    ny = int(m.group(2) or 1)
+    for axis, digits in (("X", m.group(1)), ("Y", m.group(2))):
+        if digits and len(digits.lstrip("0")) > 9:
+            p.fail(f"SR asks for {len(digits.lstrip('0'))}-digit repeat count along {axis}; at "
+                   f"most {p.limits.max_step_repeat} copies allowed (limit max_step_repeat)",
+                   line, ResourceLimitError)
+    nx = int(m.group(1).lstrip("0") or "0") if m.group(1) else 1
+    ny = int(m.group(2).lstrip("0") or "0") if m.group(2) else 1
     if nx < 1 or ny < 1:
         p.fail(f"saw {compact!r}; expected X and Y repeat counts of at least 1", line)
     f = p.unit_factor(line)
@@ -189,7 +195,8 @@ def _legacy(p: "Plotter", code: str, up: str, text: str, line: int) -> None:
         if not m:
             p.fail(f"saw {text!r}; expected {code}A<value>B<value>", line)
         ident = 0.0 if code == "OF" else 1.0
-        vals = [float(v) if v not in (None, "", ".") else ident for v in m.groups()]
+        vals = [parse_decimal(v, f"the {code} value", p.name, line)
+                if v not in (None, "", ".") else ident for v in m.groups()]
         if any(v != ident for v in vals):
             what = "offset" if code == "OF" else "scale"
             p.fail(f"deprecated image {what} {text!r} is not supported; only the identity "

@@ -17,16 +17,16 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 from shapely import affinity
-from shapely.geometry import Polygon
+from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
 
-from ...errors import InputFileError, ResourceLimitError
+from ...errors import InputFileError, ResourceLimitError, UnsupportedFeatureError
 from ...geometry import arcs
 from ...limits import Limits
 from .tokens import Word
 
 _NAME = re.compile(r"^[._$a-zA-Z][._$a-zA-Z0-9]{0,126}$")
-_TOKEN = re.compile(r"\s*(?:(\d+\.?\d*|\.\d+)|\$(\d+)|([-+xX/()]))")
+_TOKEN = re.compile(r"\s*(?:(\d+(?:\.\d*)?|\.\d+)|\$(\d+)|([-+xX/()]))")
 _VARDEF = re.compile(r"^\$(\d+)=(.*)$", re.S)
 
 #: primitive code -> (name, allowed parameter counts; None = checked when evaluated)
@@ -47,6 +47,27 @@ class ExpressionError(ValueError):
     """A macro arithmetic expression that cannot be read or evaluated."""
 
 
+#: Most rings of a moire primitive drawn.  The deprecated moire is a registration target
+#: of a few rings; GEOS overlay and validity checks on thousands of nested rings take time
+#: that grows faster than their vertex count.
+MAX_MOIRE_RINGS = 100
+
+#: Deepest nesting of parentheses and unary signs read in one expression.  Real macros
+#: nest a few levels; the bound keeps the recursive-descent parser far from Python's
+#: recursion limit on hostile input.
+MAX_EXPRESSION_NESTING = 100
+
+
+def _var_number(digits: str) -> int:
+    """``$n`` variable number; at most 10 significant digits (Gerber integers are 32-bit,
+    spec rev. 2024.05, "Data types")."""
+    sig = digits.lstrip("0")
+    if len(sig) > 10:
+        raise ExpressionError(f"variable ${digits[:12]}... has {len(sig)} digits; expected a "
+                              "variable number below 2^31")
+    return int(sig or "0")
+
+
 # ----------------------------------------------------------------------------- expressions
 def parse_expression(text: str):
     """Parse a macro expression into a small tree.
@@ -65,7 +86,7 @@ def parse_expression(text: str):
         if m.group(1) is not None:
             tokens.append(("num", float(m.group(1))))
         elif m.group(2) is not None:
-            tokens.append(("var", int(m.group(2))))
+            tokens.append(("var", _var_number(m.group(2))))
         else:
             op = m.group(3)
             tokens.append(("op", "x" if op == "X" else op))
@@ -86,6 +107,7 @@ class _Parser:
         self.t = tokens
         self.i = 0
         self.text = text
+        self.depth = 0
 
     def peek(self):
         return self.t[self.i] if self.i < len(self.t) else (None, None)
@@ -113,39 +135,71 @@ class _Parser:
         self.i += 1
         if kind in ("num", "var"):
             return (kind, val)
-        if val in ("+", "-"):
-            inner = self.factor()
-            return ("neg", inner) if val == "-" else inner
+        if val not in ("+", "-", "("):
+            raise ExpressionError(f"unexpected {val!r} in expression {self.text[:40]!r}")
+        self.depth += 1
+        if self.depth > MAX_EXPRESSION_NESTING:
+            raise ExpressionError(f"expression {self.text[:40]!r}... is nested more than "
+                                  f"{MAX_EXPRESSION_NESTING} deep (parentheses and signs); "
+                                  "expected a shallower expression")
         if val == "(":
             node = self.expr()
             if self.peek() != ("op", ")"):
-                raise ExpressionError(f"missing ')' in expression {self.text!r}")
+                raise ExpressionError(f"missing ')' in expression {self.text[:40]!r}")
             self.i += 1
-            return node
-        raise ExpressionError(f"unexpected {val!r} in expression {self.text!r}")
+        else:
+            inner = self.factor()
+            node = ("neg", inner) if val == "-" else inner
+        self.depth -= 1
+        return node
 
 
 def evaluate(tree, variables: dict[int, float]) -> float:
-    """Value of an expression tree; an undefined variable reads as 0 (spec rev. 2024.05)."""
-    kind = tree[0]
-    if kind == "num":
-        return tree[1]
-    if kind == "var":
-        return variables.get(tree[1], 0.0)
-    if kind == "neg":
-        return -evaluate(tree[1], variables)
-    _, op, a, b = tree
-    x = evaluate(a, variables)
-    y = evaluate(b, variables)
-    if op == "+":
-        return x + y
-    if op == "-":
-        return x - y
-    if op == "x":
-        return x * y
-    if y == 0:
-        raise ExpressionError("division by zero")
-    return x / y
+    """Value of an expression tree; an undefined variable reads as 0 (spec rev. 2024.05).
+
+    Evaluated with an explicit stack, so a long left-associative chain such as
+    ``1+1+1+...`` (a tree as deep as it is long) needs no recursion.  Raises
+    :class:`ExpressionError` for a division by zero or a value that is not finite
+    (an overflow such as ``1e200x1e200``).
+    """
+    values: list[float] = []
+    stack = [(tree, False)]
+    while stack:
+        node, ready = stack.pop()
+        kind = node[0]
+        if kind == "num":
+            values.append(node[1])
+        elif kind == "var":
+            values.append(variables.get(node[1], 0.0))
+        elif kind == "neg":
+            if ready:
+                values.append(-values.pop())
+            else:
+                stack.append((node, True))
+                stack.append((node[1], False))
+        elif not ready:
+            stack.append((node, True))
+            stack.append((node[3], False))
+            stack.append((node[2], False))
+        else:
+            y = values.pop()
+            x = values.pop()
+            op = node[1]
+            if op == "+":
+                values.append(x + y)
+            elif op == "-":
+                values.append(x - y)
+            elif op == "x":
+                values.append(x * y)
+            else:
+                if y == 0:
+                    raise ExpressionError("division by zero")
+                values.append(x / y)
+    result = values.pop()
+    if not math.isfinite(result):
+        raise ExpressionError(f"the value is {result}; expected a finite number (an "
+                              "overflow?)")
+    return result
 
 
 # ----------------------------------------------------------------------------- definitions
@@ -191,8 +245,11 @@ def parse_am(words: tuple[Word, ...], file: str, limits: Limits) -> Macro:
             except ExpressionError as exc:
                 raise InputFileError(f"bad expression in macro {mname!r} variable "
                                      f"${m.group(1)}: {exc}", file=file, line=w.line) from exc
-            stmts.append(Statement("define", w.line, var=int(m.group(1)), params=(tree,),
-                                   text=compact))
+            try:
+                var = _var_number(m.group(1))
+            except ExpressionError as exc:
+                raise InputFileError(f"macro {mname!r}: {exc}", file=file, line=w.line) from exc
+            stmts.append(Statement("define", w.line, var=var, params=(tree,), text=compact))
             continue
         parts = compact.split(",")
         try:
@@ -205,6 +262,11 @@ def parse_am(words: tuple[Word, ...], file: str, limits: Limits) -> Macro:
                                  file=file, line=w.line)
         pname, counts = PRIMITIVES[code]
         nparams = len(parts) - 1
+        if code == 4 and nparams > 2 * limits.max_outline_vertices + 5:
+            raise ResourceLimitError(
+                f"macro {mname!r}: the outline primitive has {nparams} parameters, more than "
+                f"{limits.max_outline_vertices} vertices (limit max_outline_vertices)",
+                file=file, line=w.line)
         if counts is not None and nparams not in counts:
             raise InputFileError(
                 f"macro {mname!r}: the {pname} primitive has {nparams} parameters; expected "
@@ -262,8 +324,9 @@ def _valid(g: BaseGeometry) -> BaseGeometry:
 
 
 class _Ctx:
-    def __init__(self, macro: Macro, st: Statement, file: str, ad_line: int):
+    def __init__(self, macro: Macro, st: Statement, file: str, ad_line: int, charge=None):
         self.macro, self.st, self.file, self.ad_line = macro, st, file, ad_line
+        self.charge = charge if charge is not None else _no_charge
 
     def fail(self, what: str, cls=InputFileError):
         raise cls(f"macro {self.macro.name!r} (used by the AD at line {self.ad_line}): {what}",
@@ -280,6 +343,52 @@ class _Ctx:
         if v < 0:
             self.fail(f"{what} is {v:g}; expected a value >= 0")
         return v
+
+
+def _no_charge(n: int) -> None:
+    """Default vertex accounting: none."""
+
+
+def _moire_rings(ctx: _Ctx, cx: float, cy: float, outer: float, thick: float, step: float,
+                 rings: int) -> list[BaseGeometry]:
+    """The rings of a moire (mm) as annuli built directly, without overlay operations.
+
+    Every circle uses the segment count of the outer one, so the flattened circles are
+    scaled copies of each other and never cross: rings that do not touch form a valid
+    MultiPolygon, and rings that touch (gap 0) are merged into one annulus.  (A union of
+    thousands of touching rings costs GEOS time that grows with the square of the count.)
+    """
+    annuli: list[list[float]] = []
+    d = outer
+    for _ in range(rings):
+        if d <= 0:
+            break
+        inner = d - 2 * thick
+        if annuli and d >= annuli[-1][1]:   # reaches the hole of the ring before it
+            annuli[-1][1] = min(annuli[-1][1], inner)
+        elif inner < d:
+            annuli.append([d, inner])
+        d -= step
+    if not annuli:
+        return []
+    n = max(arcs.segments_for(outer / 2, 2 * math.pi), arcs.MIN_CIRCLE_SEGMENTS)
+    ang = np.linspace(0.0, 2 * math.pi, n, endpoint=False)
+    unit = np.column_stack([np.cos(ang), np.sin(ang)]) / math.cos(math.pi / n)
+
+    def ring(diameter: float) -> np.ndarray:
+        return unit * (diameter / 2) + (cx, cy)
+
+    polys = np.empty(len(annuli), dtype=object)
+    for k, (o, i) in enumerate(annuli):
+        ctx.charge(2 * (n + 1))
+        polys[k] = Polygon(ring(o), [ring(i)] if i > 0 else None)
+    # the annuli are disjoint by construction; only a ring thinner than the double
+    # resolution can be invalid (checked one by one: a MultiPolygon-wide check of nested
+    # rings is far slower)
+    bad = ~shapely.is_valid(polys)
+    if bad.any():
+        return [_valid(shapely.union_all(polys))]
+    return [MultiPolygon(list(polys)) if len(polys) > 1 else polys[0]]
 
 
 def _primitive(ctx: _Ctx, code: int, p: list[float], f: float,
@@ -356,21 +465,21 @@ def _primitive(ctx: _Ctx, code: int, p: list[float], f: float,
             ctx.fail(f"moire has {nrings:g} rings; expected a whole number >= 0")
         ch_t = ctx.size(p[6], "cross-hair thickness") * f
         ch_l = ctx.size(p[7], "cross-hair length") * f
-        parts = []
-        d = outer
-        for _ in range(int(nrings)):
-            if d <= 0:
-                break
-            ring = arcs.circle(cx, cy, d)
-            inner = d - 2 * thick
-            if inner > 0:
-                ring = ring.difference(arcs.circle(cx, cy, inner))
-            parts.append(ring)
-            d -= 2 * (thick + gap)
+        # rings shrink by 2 (thickness + gap); once the diameter reaches 0 no more are
+        # drawn, and with thickness + gap = 0 every ring is the first one again
+        step = 2 * (thick + gap)
+        rings = int(min(nrings, outer / step + 1.0 if step > 0 else 1.0))
+        if rings > MAX_MOIRE_RINGS:
+            ctx.fail(f"a moire drawing {rings} rings is not supported; this reader draws at "
+                     f"most {MAX_MOIRE_RINGS} (a moire is a registration target of a few "
+                     "rings)", UnsupportedFeatureError)
+        parts = _moire_rings(ctx, cx, cy, outer, thick, step, rings)
+        g = parts[0] if parts else Polygon()
         if ch_t > 0 and ch_l > 0:
-            parts.append(Polygon(_rect(cx - ch_l / 2, cy - ch_t / 2, cx + ch_l / 2, cy + ch_t / 2)))
-            parts.append(Polygon(_rect(cx - ch_t / 2, cy - ch_l / 2, cx + ch_t / 2, cy + ch_l / 2)))
-        g = shapely.union_all(parts) if parts else Polygon()
+            cross = shapely.union_all([
+                Polygon(_rect(cx - ch_l / 2, cy - ch_t / 2, cx + ch_l / 2, cy + ch_t / 2)),
+                Polygon(_rect(cx - ch_t / 2, cy - ch_l / 2, cx + ch_t / 2, cy + ch_l / 2))])
+            g = g.union(cross) if not g.is_empty else cross
         return True, affinity.rotate(g, p[8], origin=(0, 0)) if p[8] else g
     if code == 7:
         cx, cy = p[0] * f, p[1] * f
@@ -392,14 +501,57 @@ def _primitive(ctx: _Ctx, code: int, p: list[float], f: float,
     raise AssertionError(code)  # pragma: no cover - codes checked at parse time
 
 
+#: primitive code -> the parameters that are lengths (sizes or coordinates, file units)
+_LENGTHS: dict[int, slice] = {
+    1: slice(1, 4), 2: slice(1, 6), 20: slice(1, 6), 21: slice(1, 5), 22: slice(1, 5),
+    4: slice(2, -1), 5: slice(2, 5), 6: slice(0, 5), 7: slice(0, 5),
+}
+
+
+def _check_lengths(ctx: _Ctx, code: int, p: list[float], f: float, limits: Limits) -> None:
+    """Refuse a primitive whose size or position (mm) is beyond ``max_aperture_mm`` before
+    any geometry is built: no aperture is that large, and flattening a circle of an
+    astronomical diameter has no meaning."""
+    lengths = p[_LENGTHS[code]]
+    if code == 6:
+        lengths = lengths + p[6:8]
+    if not lengths:
+        return
+    big = max(abs(v) for v in lengths) * f
+    if big > limits.max_aperture_mm:
+        ctx.fail(f"the {PRIMITIVES[code][0]} primitive has a size or position of {big:g} mm; "
+                 f"expected at most {limits.max_aperture_mm:g} mm (limit max_aperture_mm)",
+                 ResourceLimitError)
+
+
 def instantiate(macro: Macro, params: list[float], unit_factor: float, file: str,
-                ad_line: int, limits: Limits) -> BaseGeometry:
+                ad_line: int, limits: Limits, charge=None) -> BaseGeometry:
     """Evaluate ``macro`` with AD ``params`` (file units) into a shape in millimetres.
 
     The result is the union of exposure-on primitives minus exposure-off ones, in statement
-    order; its origin is the macro origin.
+    order; its origin is the macro origin.  ``charge(n)``, if given, is called with the
+    vertex count of every primitive built (the caller's per-file vertex budget; it raises
+    to stop), so a file cannot make the reader build macros without bound.  One aperture
+    may build at most ``limits.max_region_vertices`` vertices (the limit on one filled
+    region, applied to one aperture): :class:`ResourceLimitError` past it.
     """
     variables = {i + 1: v for i, v in enumerate(params)}
+    built = 0
+    st: Statement | None = None
+
+    def charge_one(n: int) -> None:
+        # one aperture is one filled shape: no more vertices than one region may have
+        nonlocal built
+        built += n
+        if built > limits.max_region_vertices:
+            raise ResourceLimitError(
+                f"macro {macro.name!r} (used by the AD at line {ad_line}) builds more than "
+                f"{limits.max_region_vertices} vertices for one aperture (limit "
+                "max_region_vertices, applied to one aperture)", file=file,
+                line=st.line if st is not None else ad_line)
+        if charge is not None:
+            charge(n)
+
     result: BaseGeometry = Polygon()
     run: list[BaseGeometry] = []
     run_on = True
@@ -409,11 +561,14 @@ def instantiate(macro: Macro, params: list[float], unit_factor: float, file: str
         if not run:
             return
         g = shapely.union_all(run) if len(run) > 1 else run[0]
-        result = result.union(g) if run_on else result.difference(g)
+        if result.is_empty:  # nothing to add to or cut from: no overlay needed
+            result = g if run_on else result
+        else:
+            result = result.union(g) if run_on else result.difference(g)
         run = []
 
     for st in macro.statements:
-        ctx = _Ctx(macro, st, file, ad_line)
+        ctx = _Ctx(macro, st, file, ad_line, charge_one)
         if st.kind == "comment":
             continue
         try:
@@ -423,7 +578,10 @@ def instantiate(macro: Macro, params: list[float], unit_factor: float, file: str
         if st.kind == "define":
             variables[st.var] = values[0]
             continue
+        _check_lengths(ctx, st.code, values, unit_factor, limits)
         on, g = _primitive(ctx, st.code, values, unit_factor, limits)
+        if st.code != 6:  # a moire charges its rings as it builds them
+            ctx.charge(int(shapely.get_num_coordinates(g)))
         if on != run_on:
             flush()
             run_on = on

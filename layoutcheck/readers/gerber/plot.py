@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
+import shapely
 from shapely.geometry import LineString, MultiPoint, Polygon
 
 from ...errors import InputFileError, ResourceLimitError, UnsupportedFeatureError
@@ -19,8 +20,8 @@ from ...limits import Limits
 from ...model import Assumption
 from .apertures import Aperture, apply_matrix, check_scaled_size, transform_matrix
 from .attributes import AttributeState, attribute_from_comment
-from .build import GeometryBuilder
-from .coords import CoordinateFormat, UNIT_FACTORS, check_coordinate, parse_number
+from .build import GeometryBuilder, repair_collapsed, stroke_vertices, vertex_budget
+from .coords import CoordinateFormat, UNIT_FACTORS, check_coordinate, parse_number, whole_number
 from .extended import attribute_command, run_extended
 from .macros import Macro
 from .regions import RegionBuilder, region_geometry
@@ -28,6 +29,10 @@ from .tokens import Command, Word, comment_text, is_comment, split_fields
 from .types import GerberFile, GraphicObject
 
 _KNOWN_G = {1, 2, 3, 4, 36, 37, 54, 55, 70, 71, 74, 75, 90, 91}
+
+#: Largest arc radius (mm) flattened.  No board arc comes near it; far beyond it (about
+#: 4e12 mm) the chord count formula of :mod:`layoutcheck.geometry.arcs` breaks down.
+MAX_ARC_RADIUS_MM = 1e9
 
 
 @dataclass
@@ -81,6 +86,10 @@ class Plotter:
         self.last_op: str | None = None
         self.ended = False
         self.count = 0
+        self.line = 0                          # line of the command being run
+        self.repaired = 0                      # shapes made valid after block/SR copies
+        self.vertices = 0                      # polygon vertices made so far
+        self.max_vertices = vertex_budget(limits)
         self._noted: set[str] = set()
 
     # ------------------------------------------------------------------ helpers
@@ -128,6 +137,15 @@ class Plotter:
                       "limit max_objects_per_file", line, ResourceLimitError)
         self.sink.append(obj)
 
+    def charge(self, n: int, line: int) -> None:
+        """Count ``n`` more polygon vertices; ResourceLimitError past the file's budget
+        (checked before copies are made, so memory stays bounded)."""
+        self.vertices += int(n)
+        if self.vertices > self.max_vertices:
+            self.fail(f"the image needs more than {self.max_vertices} polygon vertices "
+                      "(limit max_total_vertices); too many or too large objects for one "
+                      "file", line, ResourceLimitError)
+
     def object_attributes(self, ap: Aperture | None) -> dict:
         base = ap.attributes if ap is not None else {}
         if not self.attrs.object:
@@ -136,10 +154,14 @@ class Plotter:
 
     # ------------------------------------------------------------------ main loop
     def run(self, commands: list[Command], last_line: int) -> GerberFile:
+        commands = iter(commands)
         for cmd in commands:
+            self.line = cmd.line
             if self.ended:
                 if any(w.text for w in cmd.words):
                     self.note("content after M02 ignored (the file ends at M02)", cmd.line)
+                for _ in commands:  # the rest must still be well-formed words
+                    pass
                 break
             if cmd.extended:
                 run_extended(self, cmd.words)
@@ -149,6 +171,10 @@ class Plotter:
             self.fail("the file ends without M02; expected M02* as the last command (the file "
                       "looks truncated)", last_line)
         self.builder.flush()
+        self.repaired += self.builder.repaired
+        if self.repaired:
+            self.note(f"{self.repaired} object(s) far smaller than the floating-point "
+                      "resolution at their position were reduced to their valid part")
         return self.gf
 
     def finish(self, line: int) -> None:
@@ -188,13 +214,13 @@ class Plotter:
                 self.fail(f"saw {letter}{value!r} in {text!r}; expected {letter} followed by a "
                           "number", line)
             if letter == "G":
-                gcodes.append(int(value))
+                gcodes.append(whole_number(value, "the code G", self.name, line))
             elif letter == "D":
                 if dcode is not None:
-                    self.fail(f"two D codes in {text!r}", line)
-                dcode = int(value)
+                    self.fail(f"two D codes in {text[:60]!r}", line)
+                dcode = whole_number(value, "the code D", self.name, line)
             elif letter == "M":
-                mcode = int(value)
+                mcode = whole_number(value, "the code M", self.name, line)
             else:
                 self.fail(f"saw the code {letter}{value} in {text!r}; expected G, D, M, X, Y, I "
                           "or J codes", line)
@@ -297,6 +323,10 @@ class Plotter:
                                       letter)
             if dec:
                 self.note("a coordinate holds a decimal point; read literally", line)
+                if not math.isfinite(v):
+                    self.fail(f"saw {letter} with a number of {len(raw)} characters, too large "
+                              "for a double; expected a finite coordinate", line,
+                              ResourceLimitError)
             vals[letter] = v * f
         if incremental:
             x = cur[0] + vals.get("X", 0.0)
@@ -349,6 +379,7 @@ class Plotter:
             d = ap.circle_diameter * self.scale
             obj = GraphicObject(None, self.polarity, kind, self.object_attributes(ap), line,
                                 ap.code, None, None, d)
+            self.charge(stroke_vertices(len(pts), d / 2), line)
             self.builder.add_stroke(obj, pts, d / 2)
             self.add(obj, line)
             return
@@ -359,9 +390,13 @@ class Plotter:
             if shape.is_empty:
                 geom = Polygon()
             else:
-                c = np.asarray(shape.exterior.coords)
+                c = shapely.get_coordinates(shape)
                 both = np.vstack([c + pts[0], c + pts[-1]])
                 geom = MultiPoint(both).convex_hull
+                if geom.geom_type != "Polygon":  # collapsed below double resolution
+                    self.repaired += 1
+                    geom = Polygon()
+            self.charge(shapely.get_num_coordinates(geom), line)
             obj = GraphicObject(geom, self.polarity, kind, self.object_attributes(ap), line,
                                 ap.code, None, LineString(pts), None)
             self.add(obj, line)
@@ -397,11 +432,19 @@ class Plotter:
             centre = self._single_quadrant_centre(start, end, abs(i), abs(j), clockwise, line)
         r0 = math.hypot(sx - centre[0], sy - centre[1])
         r1 = math.hypot(ex - centre[0], ey - centre[1])
+        if not max(r0, r1) <= MAX_ARC_RADIUS_MM:
+            self.fail(f"an arc of radius {max(r0, r1):g} mm (centre offset I, J from the "
+                      f"start); expected at most {MAX_ARC_RADIUS_MM:g} mm", line,
+                      ResourceLimitError)
         step = (self.fmt.resolution() if self.fmt else 1e-6) * (self.factor or 1.0)
         if abs(r0 - r1) > 2 * step + 1e-6:
             self.note("an arc's start and end radii differ by more than two coordinate steps; "
                       "radius varied linearly along it", line)
-        return arcs.arc_points(start, end, centre, clockwise)
+        pts = arcs.arc_points(start, end, centre, clockwise)
+        reach = float(np.abs(pts).max())
+        if reach > self.limits.max_coordinate_mm:
+            check_coordinate(reach, self.limits, self.name, line)
+        return pts
 
     def _single_quadrant_centre(self, start, end, i, j, clockwise, line):
         """G74: of the candidate centres (sx +- I, sy +- J), the one giving an arc of at most
@@ -436,8 +479,9 @@ class Plotter:
         d = ap.circle_diameter * self.scale if ap.circle_diameter is not None else None
         obj = GraphicObject(None, self.polarity, "flash", self.object_attributes(ap), line,
                             ap.code, pt, None, d)
-        self.builder.add_flash(obj, ap.transformed(self.mirror, self.rotation, self.scale),
-                               pt[0], pt[1])
+        shape = ap.transformed(self.mirror, self.rotation, self.scale)
+        self.charge(shapely.get_num_coordinates(shape), line)
+        self.builder.add_flash(obj, shape, pt[0], pt[1])
         self.add(obj, line)
 
     def flash_block(self, ap: Aperture, pt, line: int) -> None:
@@ -453,7 +497,10 @@ class Plotter:
         off = (float(pt[0]), float(pt[1]))
         geoms = np.empty(len(objs), dtype=object)
         geoms[:] = [o.geometry for o in objs]
+        self.charge(shapely.get_num_coordinates(geoms).sum(), line)
         geoms = apply_matrix(geoms, m, off)
+        self._check_reach(geoms, ap.code, line)
+        self.repaired += repair_collapsed(geoms)
         path_idx = [k for k, o in enumerate(objs) if o.path is not None]
         paths = {}
         if path_idx:
@@ -475,6 +522,19 @@ class Plotter:
             self.add(GraphicObject(geoms[k], pol, o.kind, attrs, o.line, o.aperture, point,
                                    paths.get(k), dia), line)
 
+    def _check_reach(self, geoms: np.ndarray, what: str, line: int) -> None:
+        """ResourceLimitError when a flashed block's objects reach beyond the coordinate
+        limit; LS may scale a block without bound, so this is checked on the result."""
+        if len(geoms) == 0:
+            return
+        b = shapely.bounds(geoms)
+        with np.errstate(invalid="ignore"):
+            reach = np.fmax.reduce(np.abs(b), axis=None)
+        if not np.isnan(reach) and not reach <= self.limits.max_coordinate_mm:
+            self.fail(f"{what} places copper {float(reach):g} mm from the origin; expected at "
+                      f"most {self.limits.max_coordinate_mm:g} mm (limit max_coordinate_mm)",
+                      line, ResourceLimitError)
+
     def end_region(self, line: int) -> None:
         rb = self.region
         if rb is None:
@@ -486,6 +546,7 @@ class Plotter:
         if not rb.contours:
             self.note("an empty region (G36 ... G37 with no contour) made no object", line)
             return
+        self.charge(shapely.get_num_coordinates(geom), line)
         self.add(GraphicObject(geom, self.polarity, "region", dict(rb.attributes), line), line)
 
     # ------------------------------------------------------------------ step and repeat
@@ -533,7 +594,9 @@ class Plotter:
                          ][1:], dtype=float)
         base = np.empty(k, dtype=object)
         base[:] = [o.geometry for o in objs]
+        self.charge(shapely.get_num_coordinates(base).sum() * copies, line)
         geoms = _translate_tiled(base, offs)
+        self.repaired += repair_collapsed(geoms)
         path_idx = [n for n, o in enumerate(objs) if o.path is not None]
         tiled_paths = None
         if path_idx:

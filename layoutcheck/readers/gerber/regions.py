@@ -59,7 +59,9 @@ class RegionBuilder:
             self.current = None
 
 
-def _valid_polygonal(g: BaseGeometry) -> BaseGeometry:
+def valid_polygonal(g: BaseGeometry) -> BaseGeometry:
+    """The valid polygonal part of ``g`` (mm): ``make_valid``, keep polygons of positive
+    area, unite them; an empty Polygon when none is left."""
     try:
         g = shapely.make_valid(g, method="structure")
     except (TypeError, ValueError):  # pragma: no cover - GEOS without "structure"
@@ -94,7 +96,7 @@ def contour_polygon(c: Contour, resolution: float, file: str,
     poly = Polygon(pts)
     if poly.is_valid:
         return poly
-    return _valid_polygonal(poly)
+    return valid_polygonal(poly)
 
 
 def region_geometry(rb: RegionBuilder, resolution: float, file: str, note) -> BaseGeometry:

@@ -9,6 +9,7 @@ the line of a word is the line of its first non-blank character.
 from __future__ import annotations
 
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 from ...errors import InputFileError
@@ -56,7 +57,15 @@ def tokenize(text: str, name: str) -> tuple[list[Command], int]:
     :class:`InputFileError` for a word that does not end in ``*`` (for example ``%FSLAX26Y26%``
     or a file cut off in the middle of a word) or an extended block left open.
     """
-    commands: list[Command] = []
+    return list(iter_commands(text, name)), last_text_line(text)
+
+
+def iter_commands(text: str, name: str) -> Iterator[Command]:
+    """The commands of ``text`` one at a time, as :func:`tokenize` finds them.
+
+    Lazy, so a reader that stops early (a safety limit reached) never splits the rest of
+    a huge file.  The errors of :func:`tokenize` are raised when the scan reaches them.
+    """
     pos = 0
     line = 1  # line number at ``pos``
     in_ext = False
@@ -71,7 +80,7 @@ def tokenize(text: str, name: str) -> tuple[list[Command], int]:
             if in_ext:
                 ext_words.append(Word(word, wline))
             else:
-                commands.append(Command((Word(word, wline),), False))
+                yield Command((Word(word, wline),), False)
         else:  # '%'
             word, wline = _clean(raw, line)
             if word:
@@ -80,7 +89,7 @@ def tokenize(text: str, name: str) -> tuple[list[Command], int]:
                     file=name, line=wline)
             if in_ext:
                 if ext_words:  # an empty '%%' pair holds nothing and is skipped
-                    commands.append(Command(tuple(ext_words), True))
+                    yield Command(tuple(ext_words), True)
                 ext_words = []
                 in_ext = False
             else:
@@ -90,7 +99,6 @@ def tokenize(text: str, name: str) -> tuple[list[Command], int]:
         pos = m.end()
     tail = text[pos:]
     word, wline = _clean(tail, line)
-    last_line = _last_text_line(text)
     if word:
         raise InputFileError(
             f"saw {word[:40]!r} at the end of the file; expected it to end in '*' "
@@ -98,10 +106,10 @@ def tokenize(text: str, name: str) -> tuple[list[Command], int]:
     if in_ext:
         raise InputFileError("an extended command opened with '%' is never closed; expected '%' "
                              "(the file looks truncated)", file=name, line=ext_line)
-    return commands, last_line
 
 
-def _last_text_line(text: str) -> int:
+def last_text_line(text: str) -> int:
+    """1-based number of the last line of ``text`` that holds anything but blanks."""
     stripped = text.rstrip()
     return stripped.count("\n") + 1
 

@@ -44,3 +44,25 @@ def test_reported_gaps_match_shapely_on_design_copper(rev_a):
         # and their separation is the reported measured distance
         assert abs(shapely.distance(shapely.Point(f.where), shapely.Point(f.to))
                    - f.measured_mm) <= 1e-6
+
+
+def test_plain_gerber_nets_are_named_and_listed(tmp_path):
+    """Without X2 attributes the copper still forms the design's nets (one conductor per
+    design net, counted from the generator's own net list), named N1.. and listed with a
+    location; every undeclared voltage is an assumption (issue 2, item 6)."""
+    from layoutcheck.reports import json_report, text_report
+    from layoutcheck.writers.drill import write_drill
+    from layoutcheck.writers.gerber import write_gerbers
+
+    design = fullbridge.build("b")
+    write_gerbers(design, tmp_path, x2=False)
+    write_drill(design, tmp_path)
+    r = review(tmp_path)
+    n = len(design.nets())
+    # GND and HV_RTN are separate nets in the design joined only through the 0-ohm R7's
+    # two pads, so copper alone sees exactly one conductor per design net
+    assert sorted(r.graph.nets, key=lambda s: int(s[1:])) == [f"N{i}" for i in range(1, n + 1)]
+    named = json_report.report_dict(r)["board"]["named_by_layoutcheck"]
+    assert [x["name"] for x in named] == [f"N{i}" for i in range(1, n + 1)]
+    assert "Nets named by layoutcheck" in text_report.render(r)
+    assert sum(a.topic == "voltage" and a.text.startswith("net ") for a in r.assumptions) == n

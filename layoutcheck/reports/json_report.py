@@ -41,6 +41,18 @@ def _clean(v: Any):
     return v
 
 
+def auto_named_nets(review) -> list[dict]:
+    """Nets layoutcheck had to name (``N1``...): their pins and a point on their copper."""
+    g = review.graph
+    out = []
+    for net in sorted(g.auto_named, key=lambda n: (len(n), n)):
+        isl = g.islands[g.nets[net][0]]
+        p = isl.geometry.representative_point()
+        out.append({"name": net, "pins": [f"{r}.{p_}" for r, p_ in g.pins_of(net)],
+                    "layer": isl.layer, "where": _pt((p.x, p.y))})
+    return out
+
+
 def report_dict(review) -> dict:
     """The report as plain data (see the module docstring for the schema)."""
     b = review.board
@@ -69,6 +81,7 @@ def report_dict(review) -> dict:
             "components": sorted(b.components),
             "size_mm": [_r(size[0]), _r(size[1])] if size else None,
             "floating_islands": len(review.graph.floating),
+            "named_by_layoutcheck": auto_named_nets(review),
         },
         "assumptions": [{"topic": a.topic, "text": a.text} for a in review.assumptions],
         "findings": findings,

@@ -8,6 +8,7 @@ from collections import defaultdict
 
 from ..findings import SEVERITY_RANK
 from .caution import CAUTION
+from .json_report import auto_named_nets
 
 WIDTH = 92
 _LABEL = {"error": "ERROR", "warning": "WARN ", "info": "info "}
@@ -33,6 +34,13 @@ def render(review) -> str:
                  f"{len(b.components)} components, {len(b.holes)} holes")
     if g.floating:
         lines.append(f"  floating copper islands (no net): {len(g.floating)}")
+    undeclared = [a for a in review.assumptions if a.topic == "voltage" and
+                  a.text.startswith("net ")]
+    if undeclared:
+        lines.extend(textwrap.wrap(
+            f"NOTE: {len(undeclared)} of {len(g.nets)} nets have no declared voltage and "
+            "were given an assumed one (see Assumptions); every verdict below depends on "
+            "that.", WIDTH, initial_indent="  ", subsequent_indent="        "))
     lines.append("")
 
     by_rule: dict[str, list] = defaultdict(list)
@@ -71,6 +79,16 @@ def render(review) -> str:
                 lines.append(f"         at {loc} mm")
             if f.basis:
                 lines.extend(_wrap("basis: " + f.basis, "         "))
+        lines.append("")
+
+    named = auto_named_nets(review)
+    if named:
+        lines.append(f"Nets named by layoutcheck ({len(named)}): the files carry no name for them")
+        for n in named:
+            pins = ", ".join(n["pins"][:8]) + (" ..." if len(n["pins"]) > 8 else "")
+            w = n["where"]
+            lines.append(f"  {n['name']:<6} {n['layer']} at ({w['x_mm']:.3f}, {w['y_mm']:.3f})"
+                         + (f"  pins {pins}" if pins else ""))
         lines.append("")
 
     lines.append(f"Assumptions ({len(review.assumptions)})")

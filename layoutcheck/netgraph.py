@@ -254,28 +254,21 @@ def build_netgraph(board: Board) -> NetGraph:
                       if layer_index[islands[i].layer] == low])
         return (low, round(float(b[:, 0].min()), 6), round(float(b[:, 1].min()), 6), comp[0])
 
-    counter = 0
-    for k in sorted(unnamed, key=order_key):
-        counter += 1
-        while f"N{counter}" in used:
+    def give_names(group, prefix, record):
+        counter = 0
+        for k in sorted(group, key=order_key):
             counter += 1
-        name = f"N{counter}"
-        used.add(name)
-        auto_named.add(name)
-        for i in conductors[k]:
-            island_net[i] = name
-        nets[name] = list(conductors[k])
-    counter = 0
-    for k in sorted(nc, key=order_key):
-        counter += 1
-        while f"{NO_CONNECT}-{counter}" in used:
-            counter += 1
-        name = f"{NO_CONNECT}-{counter}"
-        used.add(name)
-        no_connect.add(name)
-        for i in conductors[k]:
-            island_net[i] = name
-        nets[name] = list(conductors[k])
+            while f"{prefix}{counter}" in used:
+                counter += 1
+            name = f"{prefix}{counter}"
+            used.add(name)
+            record.add(name)
+            for i in conductors[k]:
+                island_net[i] = name
+            nets[name] = list(conductors[k])
+
+    give_names(unnamed, "N", auto_named)
+    give_names(nc, f"{NO_CONNECT}-", no_connect)
 
     splits = _split_records(board, islands, conductors, cond_names, hole_name_islands)
     nets = {n: sorted(nets[n]) for n in sorted(nets)}

@@ -124,6 +124,9 @@ def spacing_cmd(
                                      "termination is one of the two features (IPC-2221B)."),
     interpolate: bool = typer.Option(False, "--interpolate", help="Interpolate between "
                                      "table rows instead of taking the next row up."),
+    creepage_columns: str | None = typer.Option(
+        None, "--creepage-columns", help="material-group (default) or printed-wiring: "
+        "which columns of IEC 60664-1 Table F.4 give creepage on a printed board."),
     format: Format = typer.Option(Format.text, "--format", help="Output format."),
 ):
     """Required clearance and creepage for a voltage, without a board."""
@@ -134,7 +137,8 @@ def spacing_cmd(
 
     given = {"standard": standard, "pollution_degree": pollution_degree,
              "material_group": material_group, "overvoltage_category": overvoltage_category,
-             "insulation": insulation, "altitude_m": altitude, "coating": coating}
+             "insulation": insulation, "altitude_m": altitude, "coating": coating,
+             "creepage_columns": creepage_columns}
     profile = SpacingProfile(**{k: v for k, v in given.items() if v is not None},
                              interpolate=interpolate)
     req = required_spacing(profile, volts, rms_v=rms, impulse_v=impulse,
@@ -157,9 +161,11 @@ def spacing_cmd(
     labels = {"standard": "standard", "pollution_degree": "pollution degree",
               "material_group": "material group",
               "overvoltage_category": "overvoltage category", "insulation": "insulation",
-              "altitude_m": "altitude", "coating": "coating"}
+              "altitude_m": "altitude", "coating": "coating",
+              "creepage_columns": "creepage columns"}
     out = [f"Required spacing for a working voltage of {volts:g} V"]
-    iec_only = {"pollution_degree", "material_group", "overvoltage_category", "insulation"}
+    iec_only = {"pollution_degree", "material_group", "overvoltage_category", "insulation",
+                "creepage_columns"}
     for k, v in settings.items():
         if profile.standard == "ipc2221b" and k in iec_only:
             continue

@@ -44,13 +44,59 @@ DEFAULT_UNDECLARED = VoltageRange(0.0, 15.0)
 COATINGS = ("none", "solder-mask", "conformal")
 
 
+STANDARDS = ("ipc2221b", "iec60664-1", "both")
+MATERIAL_GROUPS = ("I", "II", "IIIa", "IIIb")
+OVERVOLTAGE_CATEGORIES = ("I", "II", "III", "IV")
+INSULATION_KINDS = ("functional", "basic", "supplementary", "reinforced")
+
+
 @dataclass
 class Environment:
-    """Where the board will live.  ``altitude_m`` in metres above sea level."""
+    """Where the board will live and which spacing standard applies.
+
+    altitude_m: metres above sea level.  pollution_degree: 1..3 (IEC 60664-1).
+    material_group: I, II, IIIa, IIIb (from ``material_group`` or ``cti``).
+    ``explicit`` holds the keys the file actually gave; the others are defaults and become
+    assumptions when a rule uses them.
+    """
 
     altitude_m: float = 0.0
     coating: str = "none"
+    standard: str = "ipc2221b"
+    pollution_degree: int = 2
+    material_group: str = "IIIa"
+    cti: float | None = None
+    overvoltage_category: str = "II"
+    interpolate: bool = False
+    creepage_columns: str = "material-group"
     explicit: set[str] = field(default_factory=set)  # keys the file actually gave
+
+
+@dataclass
+class InsulationRule:
+    """``[[insulation]]``: the insulation kind required between two groups of nets."""
+
+    between: list[str]
+    and_: list[str]
+    kind: str
+
+    def matches(self, a: str, b: str) -> bool:
+        def hit(net, pats):
+            return any(fnmatch.fnmatchcase(net, p) for p in pats)
+        return (hit(a, self.between) and hit(b, self.and_)) or \
+               (hit(b, self.between) and hit(a, self.and_))
+
+
+@dataclass
+class Earth:
+    """``[earth]``: 0 V conductors outside the copper (enclosure at the board edge, earthed
+    mounting hardware).  ``edge``: the board edge is earthed metal; ``mounting_holes``: every
+    non-plated hole of at least ``hole_min_mm`` carries earthed hardware."""
+
+    edge: bool = False
+    mounting_holes: bool = False
+    hole_min_mm: float = 2.5
+    kind: str = "basic"
 
 
 @dataclass
@@ -83,6 +129,8 @@ class Project:
     stackup_thickness_mm: float | None = None
     stackup_copper_um: float | None = None
     ignore_rules: list[str] = field(default_factory=list)
+    insulation: list[InsulationRule] = field(default_factory=list)
+    earth: Earth = field(default_factory=Earth)
     data: dict[str, Any] = field(default_factory=dict)
     assumptions: list[Assumption] = field(default_factory=list)
 
@@ -137,6 +185,16 @@ class Project:
             return rule.voltage, how
         _, off, root = self._chain(net)
         return VoltageRange(root.lo + off.lo, root.hi + off.hi), how
+
+    def insulation_between(self, a: str, b: str) -> tuple[str, str]:
+        """Insulation kind required between nets ``a`` and ``b`` and why.
+
+        The first ``[[insulation]]`` entry that matches wins; otherwise ``functional``.
+        """
+        for k, rule in enumerate(self.insulation):
+            if rule.matches(a, b):
+                return rule.kind, f"[[insulation]] entry {k + 1}"
+        return "functional", "default (no [[insulation]] entry names this pair)"
 
     def working_voltage(self, a: str, b: str) -> float:
         """Largest voltage (V) between nets ``a`` and ``b``.
@@ -293,7 +351,46 @@ def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
                  "coating")
         proj.environment.coating = c
         proj.environment.explicit.add("coating")
+    _more_environment(env, proj.environment, fail)
     _environment_assumptions(proj)
+
+    ins = data.get("insulation", [])
+    if not isinstance(ins, list) or not all(isinstance(x, dict) for x in ins):
+        fail("[[insulation]] must be an array of tables with between, and, kind", "[[insulation]]")
+    for k, entry in enumerate(ins):
+        def pats(key):
+            v = entry.get(key)
+            if isinstance(v, str):
+                v = [v]
+            if not isinstance(v, list) or not v or not all(isinstance(x, str) for x in v):
+                fail(f"[[insulation]] entry {k + 1}: {key!r} must be a net name, glob or list "
+                     "of them", "[[insulation]]")
+            return list(v)
+        kind = entry.get("kind", "functional")
+        if kind not in INSULATION_KINDS:
+            fail(f"[[insulation]] entry {k + 1}: kind must be one of "
+                 f"{', '.join(INSULATION_KINDS)}; got {kind!r}", "kind")
+        extra = set(entry) - {"between", "and", "kind"}
+        if extra:
+            fail(f"[[insulation]] entry {k + 1}: unknown key(s) {', '.join(sorted(extra))}; "
+                 "expected between, and, kind", "[[insulation]]")
+        proj.insulation.append(InsulationRule(pats("between"), pats("and"), kind))
+
+    earth = _table(data, "earth", fail)
+    for key in ("edge", "mounting_holes"):
+        if key in earth:
+            if not isinstance(earth[key], bool):
+                fail(f"[earth] {key} must be true or false", key)
+            setattr(proj.earth, key, earth[key])
+    if "hole_min_mm" in earth:
+        v = earth["hole_min_mm"]
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or v <= 0:
+            fail("[earth] hole_min_mm must be a diameter in mm > 0", "hole_min_mm")
+        proj.earth.hole_min_mm = float(v)
+    if "kind" in earth:
+        if earth["kind"] not in INSULATION_KINDS:
+            fail(f"[earth] kind must be one of {', '.join(INSULATION_KINDS)}", "kind")
+        proj.earth.kind = earth["kind"]
 
     stack = _table(data, "stackup", fail)
     if "thickness_mm" in stack:
@@ -316,6 +413,68 @@ def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
             fail("[rules] ignore must be a list of rule ids", "ignore")
         proj.ignore_rules = list(v)
     return proj
+
+
+def _more_environment(env: dict, e: Environment, fail) -> None:
+    """The IEC 60664-1 keys of ``[environment]`` (issue 3 profile)."""
+    if "standard" in env:
+        if env["standard"] not in STANDARDS:
+            fail(f"[environment] standard must be one of {', '.join(STANDARDS)}; got "
+                 f"{env['standard']!r}", "standard")
+        e.standard = env["standard"]
+        e.explicit.add("standard")
+    if "pollution_degree" in env:
+        v = env["pollution_degree"]
+        if isinstance(v, bool) or v not in (1, 2, 3):
+            fail(f"[environment] pollution_degree must be 1, 2 or 3; got {v!r}",
+                 "pollution_degree")
+        e.pollution_degree = int(v)
+        e.explicit.add("pollution_degree")
+    if "material_group" in env and "cti" in env:
+        fail("[environment] give material_group or cti, not both", "cti")
+    if "material_group" in env:
+        v = env["material_group"]
+        if v not in MATERIAL_GROUPS:
+            fail(f"[environment] material_group must be one of {', '.join(MATERIAL_GROUPS)}; "
+                 f"got {v!r}", "material_group")
+        e.material_group = v
+        e.explicit.add("material_group")
+    if "cti" in env:
+        v = env["cti"]
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or not 0 < v <= 1000:
+            fail(f"[environment] cti must be a comparative tracking index (V, 100..600); got "
+                 f"{v!r}", "cti")
+        if v < 100:
+            fail("[environment] cti below 100 is outside the material groups of IEC 60664-1",
+                 "cti")
+        e.cti = float(v)
+        e.material_group = ("I" if v >= 600 else "II" if v >= 400 else
+                            "IIIa" if v >= 175 else "IIIb")
+        e.explicit.add("material_group")
+    if "overvoltage_category" in env:
+        v = env["overvoltage_category"]
+        if v not in OVERVOLTAGE_CATEGORIES:
+            fail("[environment] overvoltage_category must be one of "
+                 f"{', '.join(OVERVOLTAGE_CATEGORIES)}; got {v!r}", "overvoltage_category")
+        e.overvoltage_category = v
+        e.explicit.add("overvoltage_category")
+    if "interpolate" in env:
+        if not isinstance(env["interpolate"], bool):
+            fail("[environment] interpolate must be true or false", "interpolate")
+        e.interpolate = env["interpolate"]
+        e.explicit.add("interpolate")
+    if "creepage_columns" in env:
+        if env["creepage_columns"] not in ("material-group", "printed-wiring"):
+            fail("[environment] creepage_columns must be material-group or printed-wiring; "
+                 f"got {env['creepage_columns']!r}", "creepage_columns")
+        e.creepage_columns = env["creepage_columns"]
+        e.explicit.add("creepage_columns")
+    known = {"altitude_m", "coating", "standard", "pollution_degree", "material_group", "cti",
+             "overvoltage_category", "interpolate", "creepage_columns"}
+    extra = set(env) - known
+    if extra:
+        fail(f"[environment] unknown key(s) {', '.join(sorted(extra))}; expected "
+             f"{', '.join(sorted(known))}", sorted(extra)[0])
 
 
 def _table(data: dict, name: str, fail) -> dict:

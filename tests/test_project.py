@@ -109,3 +109,57 @@ def test_relative_voltage_cycle_is_an_error(tmp_path):
         load_project(write(tmp_path, '[voltages]\n"A" = { on = "B", volts = 1 }\n'
                                      '"B" = { on = "A", volts = 1 }\n'))
     assert "circle" in str(e.value)
+
+
+ISSUE3 = '''
+[environment]
+standard = "both"
+pollution_degree = 3
+cti = 250
+overvoltage_category = "III"
+altitude_m = 3000
+coating = "conformal"
+[[insulation]]
+between = ["HV_*", "SW_*"]
+and = ["LOGIC_*", "+5V"]
+kind = "reinforced"
+[earth]
+edge = true
+mounting_holes = true
+'''
+
+
+def test_issue3_profile_keys(tmp_path):
+    """The IEC 60664-1 profile of issue 3 (contract shape).  CTI 250 -> group IIIa
+    (IEC 60112 groups as reproduced in our standards notes 2g: 175 <= CTI < 400)."""
+    proj = load_project(write(tmp_path, ISSUE3))
+    e = proj.environment
+    assert (e.standard, e.pollution_degree, e.material_group, e.overvoltage_category,
+            e.altitude_m, e.coating) == ("both", 3, "IIIa", "III", 3000.0, "conformal")
+    assert proj.insulation_between("HV_BUS", "+5V")[0] == "reinforced"
+    assert proj.insulation_between("LOGIC_A", "SW_B")[0] == "reinforced"   # either order
+    assert proj.insulation_between("HV_BUS", "GND")[0] == "functional"
+    assert proj.earth.edge and proj.earth.mounting_holes
+
+
+@pytest.mark.parametrize("cti,group", [(600, "I"), (400, "II"), (399, "IIIa"), (175, "IIIa"),
+                                       (174, "IIIb"), (100, "IIIb")])
+def test_cti_to_material_group(tmp_path, cti, group):
+    """IEC 60664-1 material groups by CTI (notes 2g, confidence high)."""
+    proj = load_project(write(tmp_path, f"[environment]\ncti = {cti}\n"))
+    assert proj.environment.material_group == group
+
+
+@pytest.mark.parametrize("text", [
+    '[environment]\nstandard = "nec"\n',
+    '[environment]\npollution_degree = 4\n',
+    '[environment]\nmaterial_group = "IV"\n',
+    '[environment]\nmaterial_group = "I"\ncti = 600\n',
+    '[environment]\nhumidity = 90\n',
+    '[[insulation]]\nbetween = ["A"]\nand = ["B"]\nkind = "double"\n',
+    '[[insulation]]\nbetween = []\nand = ["B"]\n',
+    '[earth]\nedge = "yes"\n',
+])
+def test_issue3_bad_keys(tmp_path, text):
+    with pytest.raises(ProjectFileError):
+        load_project(write(tmp_path, text))

@@ -27,11 +27,11 @@ def run(argv, capsys):
 
 
 def test_text_defaults_stated(capsys):
-    """400 V with all defaults: clearance 3.0 mm (F.1 -> 4 kV -> F.2), creepage PWB PD2 2.0 mm
-    raised to the 3.0 mm clearance; every default said in the output."""
+    """400 V with all defaults: clearance 3.0 mm (F.1 -> 4 kV -> F.2), creepage from the
+    material-group column PD2 III 4.0 mm (Table F.4); every default said in the output."""
     rc, out, _ = run(["spacing", "--volts", 400], capsys)
     assert rc == 0
-    assert "clearance: 3.0 mm" in out and "creepage:  3.0 mm" in out
+    assert "clearance: 3.0 mm" in out and "creepage:  4.0 mm" in out
     for line in ("standard: iec60664-1 (default)", "pollution degree: 2 (default)",
                  "material group: IIIa (default)", "overvoltage category: II (default)",
                  "insulation: basic (default)", "altitude: 0 m (default)"):

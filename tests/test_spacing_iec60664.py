@@ -376,11 +376,23 @@ def test_required_spacing_iec_dc_bus_chain():
     """Default reading for a DC bus (task brief): 400 V bus -> Table F.1 600 V row, OVC II
     -> 4000 V -> Table F.2 PWB PD2 (PD1 column) 3.0 mm; creepage for 400 V (DC counts as
     RMS, notes 2c) PWB PD2 2.0 mm, raised to the 3.0 mm clearance."""
-    r = required_spacing(SpacingProfile(), 400)
+    r = required_spacing(SpacingProfile(creepage_columns="printed-wiring"), 400)
     assert r.clearance_mm == pytest.approx(3.0)
     assert r.creepage_mm == pytest.approx(3.0)
     assert r.clearance_by == r.creepage_by == "IEC 60664-1"
     assert any("assumption" in a for a in r.assumptions)
+
+
+def test_required_spacing_default_uses_material_group_columns():
+    """Our conservative default takes creepage from the material-group columns of Table F.4:
+    400 V, PD2, group IIIa -> column PD2 III 4.0 mm (terminal-block catalogue reproduction
+    of Table F.4, notes 2c, confidence high); clearance stays 3.0 mm (F.1 -> 4 kV -> F.2)."""
+    r = required_spacing(SpacingProfile(), 400)
+    assert r.clearance_mm == pytest.approx(3.0)
+    assert r.creepage_mm == pytest.approx(4.0)
+    assert any("material-group columns" in b for b in r.basis)
+    with pytest.raises(UsageError):
+        SpacingProfile(creepage_columns="laminate")
 
 
 def test_required_spacing_rms_and_impulse_given():
@@ -396,7 +408,8 @@ def test_required_spacing_both_names_the_stricter():
     """IPC-2221B Table 6-1 B2 (from memory): 51-100 V 0.6 mm, 301-500 V 2.5 mm.  IEC at
     100 V: F.1 100 V row OVC II 800 V (from memory) -> F.2 PD1 column 0.1 mm, creepage PWB
     PD2 100 V 0.16 mm; so IPC governs both.  At 400 V IEC clearance 3.0 mm > 2.5 mm."""
-    low = required_spacing(SpacingProfile(standard="both"), 100)
+    low = required_spacing(SpacingProfile(standard="both", creepage_columns="printed-wiring"),
+                           100)
     assert (low.clearance_mm, low.creepage_mm) == (pytest.approx(0.6), pytest.approx(0.6))
     assert low.clearance_by == low.creepage_by == "IPC-2221B"
     high = required_spacing(SpacingProfile(standard="both"), 400)

@@ -36,6 +36,9 @@ IEC = "IEC 60664-1"
 IPC = "IPC-2221B"
 
 
+CREEPAGE_COLUMNS = ("material-group", "printed-wiring")
+
+
 @dataclass(frozen=True)
 class SpacingProfile:
     """Which standard applies and under what conditions.
@@ -51,7 +54,13 @@ class SpacingProfile:
                           IPC-2221B column, not credited under IEC 60664-1.
     interpolate:          interpolate between table rows instead of taking the next row up.
     field:                ``inhomogeneous`` (case A, default) or ``homogeneous`` (case B).
-    printed_wiring:       the surface is printed wiring material (default True).
+    printed_wiring:       the surface is printed wiring material (default True): the
+                          Table F.2 printed-wiring footnote applies to clearances.
+    creepage_columns:     ``material-group`` (default) or ``printed-wiring``: which columns
+                          of Table F.4 (ed. 3.0 F.5) give creepage on printed wiring.  The
+                          material-group columns are our conservative default; the
+                          printed-wiring columns (smaller in pollution degree 2) are the
+                          user's choice where the end-product standard allows them.
 
     Every option is checked on construction; a wrong one raises
     :class:`layoutcheck.errors.UsageError` naming the valid choices.
@@ -67,8 +76,12 @@ class SpacingProfile:
     interpolate: bool = False
     field: str = "inhomogeneous"
     printed_wiring: bool = True
+    creepage_columns: str = "material-group"
 
     def __post_init__(self):
+        if self.creepage_columns not in CREEPAGE_COLUMNS:
+            raise UsageError(f"creepage columns must be one of {', '.join(CREEPAGE_COLUMNS)}; "
+                             f"got {self.creepage_columns!r}")
         std = self.standard.strip().lower() if isinstance(self.standard, str) else None
         if std not in STANDARDS:
             raise UsageError(f"standard must be one of {', '.join(STANDARDS)}; got "
@@ -187,9 +200,15 @@ def _iec(profile: SpacingProfile, working_v: float, rms_v: float | None,
                            printed_wiring=profile.printed_wiring,
                            insulation=profile.insulation, altitude_m=profile.altitude_m,
                            interpolate=profile.interpolate)
+    pwb_columns = profile.printed_wiring and profile.creepage_columns == "printed-wiring"
+    lines.append(f"{IEC} creepage columns: " + (
+        "printed-wiring material columns of Table F.4 (chosen in the profile)" if pwb_columns
+        else "material-group columns of Table F.4 (our conservative default; the "
+             "printed-wiring columns are smaller in pollution degree 2 and may be chosen "
+             "where the end-product standard allows them)"))
     crp = iec.creepage_mm(rms, pollution_degree=profile.pollution_degree,
                           material_group=profile.material_group,
-                          printed_wiring=profile.printed_wiring,
+                          printed_wiring=pwb_columns,
                           insulation=profile.insulation, interpolate=profile.interpolate)
     crp = iec.creepage_at_least_clearance(crp, clr)
     lines.append(f"{IEC} clearance {_mm(clr.mm)} mm ({profile.insulation} insulation):")

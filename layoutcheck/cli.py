@@ -130,10 +130,8 @@ def spacing_cmd(
     format: Format = typer.Option(Format.text, "--format", help="Output format."),
 ):
     """Required clearance and creepage for a voltage, without a board."""
-    import json
-
     from .physics.requirements import SpacingProfile, required_spacing
-    from .reports.caution import CAUTION
+    from .reports import spacing_report
 
     given = {"standard": standard, "pollution_degree": pollution_degree,
              "material_group": material_group, "overvoltage_category": overvoltage_category,
@@ -144,53 +142,10 @@ def spacing_cmd(
     req = required_spacing(profile, volts, rms_v=rms, impulse_v=impulse,
                            layer_outer=not inner, termination=termination)
     defaults = sorted(k for k, v in given.items() if v is None)
-    settings = {k: getattr(profile, k) for k in given}
-    if format is Format.json:
-        doc = {"schema": "layoutcheck-spacing/1",
-               "clearance_mm": req.clearance_mm, "creepage_mm": req.creepage_mm,
-               "basis": list(req.basis),
-               "governing": {"clearance": req.clearance_by, "creepage": req.creepage_by},
-               "inputs": {"volts": volts, "rms_v": rms, "impulse_v": impulse, **settings,
-                          "interpolate": interpolate, "layer": "inner" if inner else "outer",
-                          "termination": termination},
-               "defaults_used": defaults, "assumptions": list(req.assumptions),
-               "warnings": list(req.warnings), "from_memory": req.from_memory,
-               "caution": CAUTION}
-        typer.echo(json.dumps(doc, indent=2))
-        return
-    labels = {"standard": "standard", "pollution_degree": "pollution degree",
-              "material_group": "material group",
-              "overvoltage_category": "overvoltage category", "insulation": "insulation",
-              "altitude_m": "altitude", "coating": "coating",
-              "creepage_columns": "creepage columns"}
-    out = [f"Required spacing for a working voltage of {volts:g} V"]
-    iec_only = {"pollution_degree", "material_group", "overvoltage_category", "insulation",
-                "creepage_columns"}
-    for k, v in settings.items():
-        if profile.standard == "ipc2221b" and k in iec_only:
-            continue
-        shown = f"{v:g} m" if k == "altitude_m" else str(v)
-        out.append(f"  {labels[k]}: {shown}" + (" (default)" if k in defaults else ""))
-    if profile.standard != "ipc2221b":
-        out.append(f"  RMS voltage for creepage: {rms:g} V" if rms is not None else
-                   f"  RMS voltage for creepage: {volts:g} V (default: the working voltage)")
-        out.append(f"  impulse voltage: {impulse:g} V" if impulse is not None else
-                   "  impulse voltage: from IEC 60664-1 Table F.1 (default)")
-    if profile.standard != "iec60664-1":
-        out.append(f"  layer: {'internal' if inner else 'external (default)'}; "
-                   f"{'termination' if termination else 'no termination (default)'}")
-    if profile.standard != "ipc2221b":
-        out.append(f"  rows: {'interpolated' if interpolate else 'next row up (default)'}")
-    mm = {k: (f"{x:.6g}" if "." in f"{x:.6g}" else f"{x:.6g}.0")
-          for k, x in (("clearance", req.clearance_mm), ("creepage", req.creepage_mm))}
-    out += ["", f"  clearance: {mm['clearance']} mm ({req.clearance_by})",
-            f"  creepage:  {mm['creepage']} mm ({req.creepage_by})", "", "Basis:"]
-    out += [f"  - {b}" for b in req.basis]
-    for title, items in (("Assumptions:", req.assumptions), ("Warnings:", req.warnings)):
-        if items:
-            out += ["", title] + [f"  - {a}" for a in items]
-    out += ["", CAUTION]
-    typer.echo("\n".join(out))
+    inputs = {"volts": volts, "rms_v": rms, "impulse_v": impulse, "interpolate": interpolate,
+              "inner": inner, "termination": termination}
+    render = spacing_report.render_json if format is Format.json else spacing_report.render_text
+    typer.echo(render(profile, req, inputs, defaults, list(given)), nl=False)
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -141,3 +141,115 @@ def hand_gap_rects(a, b) -> float:
 def shapely_gap(g1, g2) -> float:
     """shapely's own distance between two independently built geometries (mm)."""
     return float(shapely.distance(g1, g2))
+
+
+# -- creepage, floating chains, earth (appended) -------------------------------------------
+
+def npth(geom, *, slot: bool = True, width: float | None = None,
+         span=("top", "bottom")):
+    """A non-plated hole or slot with footprint ``geom`` (mm); ``width`` defaults to the
+    footprint's smaller bounding-box side."""
+    x0, y0, x1, y1 = geom.bounds
+    w = width if width is not None else min(x1 - x0, y1 - y0)
+    return Hole(geometry=geom, diameter=w, plated=False, span=tuple(span), is_slot=slot)
+
+
+def with_outline(board: Board, outline) -> Board:
+    """``board`` with its outline set (mm)."""
+    board.outline = outline
+    return board
+
+
+def pads_across_slot(slot_width: float, *, rounded: bool = False, nets=("HV_BUS", "GND"),
+                     pad_centre_y: float = 3.0) -> Board:
+    """Two 1 x 1 mm pads centred at (0, +-pad_centre_y) either side of a 10 mm long slot
+    along x centred at the origin, ``slot_width`` wide, on a 40 x 40 mm board.
+
+    ``rounded``: the slot is a routed stadium (ends of radius ``slot_width / 2``, centre line
+    from x = -5 + w/2 to 5 - w/2); otherwise a rectangle x = -5..5.  Straight gap between
+    the pads: 2 * pad_centre_y - 1 (by hand).
+    """
+    w = slot_width
+    if rounded:
+        slot = LineString([(-5 + w / 2, 0), (5 - w / 2, 0)]).buffer(w / 2, quad_segs=FINE)
+    else:
+        slot = box(-5, -w / 2, 5, w / 2)
+    c = pad_centre_y
+    shapes = [cu(rect(-0.5, c - 0.5, 0.5, c + 0.5), "top", nets[0]),
+              cu(rect(-0.5, -c - 0.5, 0.5, -c + 0.5), "top", nets[1])]
+    b = make_board(shapes, [npth(slot, width=w)], name="pads-across-slot")
+    return with_outline(b, box(-20, -20, 20, 20))
+
+
+def islands_between(gaps, widths, *, nets=("HV_BUS", "GND"), layer: str = "top") -> Board:
+    """Two 2 x 2 mm blocks of two nets on a row along x with floating islands between:
+    block A x = -2..0; then for each island a gap ``gaps[k]`` and an island ``widths[k]``
+    wide (y = 0.5..1.5, no net); then a last gap and block B (y = 0..2).  The straight gap
+    A-B is sum(gaps) + sum(widths); through the islands it is sum(gaps) (by hand)."""
+    shapes = [cu(rect(-2, 0, 0, 2), layer, nets[0])]
+    x = 0.0
+    for g, w in zip(gaps, widths):
+        x += g
+        shapes.append(cu(rect(x, 0.5, x + w, 1.5), layer, None))
+        x += w
+    x += gaps[len(widths)]
+    shapes.append(cu(rect(x, 0, x + 2, 2), layer, nets[1]))
+    return make_board(shapes, layers=_layers_for(layer), name="islands-between")
+
+
+def iec_project(voltages: dict | None = None, *, standard: str = "iec60664-1",
+                pollution_degree: int | None = None, earth: dict | None = None,
+                insulation: list | None = None, altitude_m: float | None = None):
+    """A project under IEC 60664-1 (or ``"both"``) with optional ``[earth]`` and
+    ``[[insulation]]`` tables."""
+    env: dict = {"standard": standard}
+    if pollution_degree is not None:
+        env["pollution_degree"] = pollution_degree
+    if altitude_m is not None:
+        env["altitude_m"] = altitude_m
+    data: dict = {"voltages": dict(voltages or {}), "environment": env}
+    if earth is not None:
+        data["earth"] = dict(earth)
+    if insulation is not None:
+        data["insulation"] = list(insulation)
+    return project_from_data(data, None)
+
+
+class FixedRules:
+    """A requirement source with fixed distances (mm), for geometry tests that must not
+    depend on table values: same clearance and creepage for every pair and voltage."""
+
+    def __init__(self, creepage_mm: float, clearance_mm: float | None = None):
+        self.creepage_mm = creepage_mm
+        self.clearance_mm = clearance_mm if clearance_mm is not None else creepage_mm
+        self.calls: list[tuple] = []
+
+    def get(self, kind, volts, outer=True, termination=False):
+        from layoutcheck.physics.requirements import Requirement
+        self.calls.append((kind, volts, outer, termination))
+        return Requirement(self.clearance_mm, self.creepage_mm,
+                           (f"fixed test requirement ({kind})",), "test", "test")
+
+    def reach(self, volts, what, outer=True):
+        return getattr(self.get("functional", volts, outer), what)
+
+
+def corner_path(p, c, r, end_angle):
+    """Hand formula for a path leaving point ``p`` tangent to the circle (centre ``c``,
+    radius ``r``, mm) and following the arc clockwise to ``end_angle`` (radians):
+    returns (tangent length, arc length), both mm (Pythagoras, and r * angle)."""
+    d = math.dist(p, c)
+    t = math.sqrt(d * d - r * r)
+    start = math.atan2(p[1] - c[1], p[0] - c[0]) - math.acos(r / d)
+    return t, r * (start - end_angle)
+
+
+def around_rect_slot_end(pad_corner, slot_half_length, slot_half_width, x_mm):
+    """Hand length (mm) of the path from ``pad_corner`` (upper pad, right of the slot's
+    centre line) around the right end of a rectangular slot to the mirror-image pad below:
+    the opening by X rounds the slot's corners to r = X/2, so the path is tangent leg +
+    corner arc + the flat end (2 * half width - 2r) + arc + leg (symmetric about y = 0)."""
+    r = x_mm / 2.0
+    c = (slot_half_length - r, slot_half_width - r)
+    t, arc = corner_path(pad_corner, c, r, 0.0)
+    return 2 * (t + arc) + (2 * slot_half_width - 2 * r)

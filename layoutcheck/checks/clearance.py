@@ -1,6 +1,28 @@
-"""Clearance: copper of two different nets on one layer closer than IPC-2221B asks for.
+"""Clearance: copper of two different nets on one layer closer than the standard asks for.
 
 Units: millimetres, volts.
+
+Standards (``[environment] standard``):
+
+* ``"ipc2221b"`` (default): IPC-2221B Table 6-1 with the termination and conductor classes
+  described below; the output is what it always was.
+* ``"iec60664-1"``: the required clearance is
+  ``required_spacing(profile, V, rms_v=V, layer_outer=...).clearance_mm``
+  (:mod:`layoutcheck.physics.requirements`) with the insulation kind of the pair
+  (``[[insulation]]``, default functional).  IEC 60664-1 makes no termination/conductor
+  distinction, so there is one class.
+* ``"both"``: the larger of the two for each class, the basis saying which governs.
+
+Clearance is the straight air gap: a slot between two conductors does not lengthen it
+(standards notes s.2d).  It is shortened by floating copper, though: floating islands,
+unconnected pads and bare plated holes in the gap are zero-length stepping stones, and the
+shortest chain net -> stone ... -> net (:func:`layoutcheck.conductors.shortest_chains`)
+is reported when it falls short, naming the stones in ``extra["via"]`` and giving its legs
+in ``extra["path"]``; in the place where it beats a direct finding it replaces it.  With
+``[earth]`` declared, the board edge and earthed mounting holes are 0 V conductors checked
+against every net (``EARTH:edge``, ``EARTH:hole@x,y``).  Under IPC-2221B a chain's or an
+earth pair's requirement is the larger of the conductor and termination columns (what the
+far ends are is not known, so the safe one is taken).
 
 For every copper layer and every pair of nets on it (floating copper excluded, nets we
 named ``N1``... included) the working voltage is ``Project.working_voltage(a, b)``: the
@@ -46,20 +68,25 @@ the largest requirement possible on the layer, then filtered with vectorised dis
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 import shapely
 from shapely.geometry import Polygon, box
 
+from ..conductors import (PairRules, close_pairs, close_places, end_conductors,
+                          pair_insulation, pair_voltage, shortest_chains, stepping_stones,
+                          straight_gaps, supersede, voltage_span)
 from ..findings import Finding
+from ..physics.requirements import Requirement
 from ..physics.spacing import ipc2221b_column, ipc2221b_spacing, load_table
 from ..units import DISTANCE_RESOLUTION_MM
 from . import CheckContext
 from .connectivity import graph_of
 
 RULE_IDS = ("clearance",)
-SUMMARY = ("copper of different nets closer than IPC-2221B Table 6-1 requires for the "
-           "voltage between them")
+SUMMARY = ("copper of different nets closer than IPC-2221B Table 6-1 or IEC 60664-1 "
+           "requires for the voltage between them, also through floating copper")
 ORDER = 20
 
 #: Copper within this distance (mm) of a termination is judged as the termination.
@@ -72,11 +99,75 @@ _QUAD_SEGS = 4
 _COVER = 1.0 / math.cos(math.pi / (4 * _QUAD_SEGS))
 
 
+@dataclass(frozen=True)
+class Need:
+    """A required clearance under IEC 60664-1 (``standard = "iec60664-1"``) or the larger of
+    IEC 60664-1 and IPC-2221B (``"both"``): ``mm``, the joined ``basis`` lines, the
+    governing standard ``by`` and the ``insulation`` kind."""
+
+    mm: float
+    basis: str
+    by: str
+    insulation: str
+
+    @classmethod
+    def of(cls, req: Requirement, kind: str) -> "Need":
+        return cls(req.clearance_mm, "; ".join(req.basis), req.clearance_by, kind)
+
+
+class _IpcNeeds:
+    """IPC-2221B Table 6-1 requirements for one layer: conductor and termination columns."""
+
+    def __init__(self, col_c: str, col_t: str):
+        self.col_c, self.col_t = col_c, col_t
+        self._by_volt: dict[float, tuple] = {}
+
+    def pair(self, a: str, b: str, v: float) -> tuple:
+        if v not in self._by_volt:
+            self._by_volt[v] = (ipc2221b_spacing(v, self.col_c),
+                                ipc2221b_spacing(v, self.col_t))
+        return self._by_volt[v]
+
+    def reach(self, vmax: float, terms: bool) -> float:
+        r = ipc2221b_spacing(vmax, self.col_c).mm
+        return max(r, ipc2221b_spacing(vmax, self.col_t).mm) if terms else r
+
+
+class _IecNeeds:
+    """IEC 60664-1 (or both standards) requirements for one layer, by insulation kind."""
+
+    def __init__(self, project, rules: PairRules, outer: bool, classes: bool):
+        self.project, self.rules, self.outer, self.classes = project, rules, outer, classes
+        self.used: list[Requirement] = []
+
+    def pair(self, a: str, b: str, v: float) -> tuple:
+        kind, _ = pair_insulation(self.project, a, b)
+        rc = self.rules.get(kind, v, self.outer, False)
+        rt = self.rules.get(kind, v, self.outer, True) if self.classes else rc
+        self.used.extend((rc, rt))
+        return Need.of(rc, kind), Need.of(rt, kind)
+
+    def reach(self, vmax: float, terms: bool) -> float:
+        return self.rules.reach(vmax, "clearance_mm", self.outer)
+
+
 def run(ctx: CheckContext) -> list[Finding]:
     """Clearance findings for every layer (see the module docstring)."""
+    return findings(ctx)
+
+
+def findings(ctx: CheckContext, rules=None) -> list[Finding]:
+    """Clearance findings.  Under IEC 60664-1 (or both standards) ``rules`` replaces the
+    requirement source (see :func:`layoutcheck.checks.creepage.findings`); default
+    :class:`layoutcheck.conductors.PairRules` of the project."""
     g = graph_of(ctx)
     board = ctx.board
     env = ctx.project.environment
+    std = env.standard
+    if std == "ipc2221b":
+        rules = None
+    elif rules is None:
+        rules = PairRules(ctx.project)
     volts: dict[str, tuple] = {}
 
     def voltage(net):
@@ -87,6 +178,7 @@ def run(ctx: CheckContext) -> list[Finding]:
     working_voltage = ctx.project.working_voltage
 
     used: dict[tuple[str, str], list[str]] = {}
+    iec_used: list[Requirement] = []
     out: list[Finding] = []
     for layer in g.layers:
         ids = np.array([i for i in g.islands_on(layer) if g.island_net[i] is not None],
@@ -95,14 +187,25 @@ def run(ctx: CheckContext) -> list[Finding]:
         if len(nets) < 2:
             continue
         outer = board.is_outer(layer)
-        col_c, why_c = ipc2221b_column(outer, env.coating, env.altitude_m, False)
-        col_t, why_t = ipc2221b_column(outer, env.coating, env.altitude_m, True)
-        terms = _terminations(board, g, ids)
-        used.setdefault((col_c, "conductors: " + why_c), []).append(layer)
-        if terms:
-            used.setdefault((col_t, "component terminations: " + why_t), []).append(layer)
-        out.extend(_layer_findings(g, layer, ids, terms, col_c, col_t, voltage,
-                                   working_voltage))
+        if std == "ipc2221b":
+            col_c, why_c = ipc2221b_column(outer, env.coating, env.altitude_m, False)
+            col_t, why_t = ipc2221b_column(outer, env.coating, env.altitude_m, True)
+            terms = _terminations(board, g, ids)
+            used.setdefault((col_c, "conductors: " + why_c), []).append(layer)
+            if terms:
+                used.setdefault((col_t, "component terminations: " + why_t),
+                                []).append(layer)
+            needs = _IpcNeeds(col_c, col_t)
+        else:
+            # IEC 60664-1 makes no termination/conductor distinction; with "both" the
+            # IPC-2221B column still depends on it, so the classes are kept then
+            terms = _terminations(board, g, ids) if std == "both" else {}
+            needs = _IecNeeds(ctx.project, rules, outer, std == "both")
+        out.extend(_layer_findings(g, layer, ids, terms, needs, voltage, working_voltage))
+        if std != "ipc2221b":
+            iec_used.extend(needs.used)
+
+    out = _earth_and_chains(ctx, g, out, rules)
 
     for (col, why), layers in sorted(used.items()):
         ctx.assume("clearance", f"IPC-2221B Table 6-1 column {col} on {', '.join(layers)}, "
@@ -112,6 +215,16 @@ def run(ctx: CheckContext) -> list[Finding]:
             "the IPC-2221B Table 6-1 spacings are recalled from memory and have not been "
             "checked against the standard (nor has the rule above 500 V, taken as the "
             "500 V value plus the per-volt value for each volt above 500)"))
+    for req in iec_used:
+        for line in req.assumptions:
+            ctx.assume("clearance", line)
+    if iec_used:
+        for key, text in (("pollution_degree", f"pollution degree {env.pollution_degree}"),
+                          ("overvoltage_category",
+                           f"overvoltage category {env.overvoltage_category}")):
+            if key not in env.explicit:
+                ctx.assume("environment", f"{key.replace('_', ' ')} not given in "
+                                          f"[environment]: {text} assumed for IEC 60664-1")
     return out
 
 
@@ -138,15 +251,12 @@ def _termination_parts(g, found: dict[int, list], keys) -> dict[int, tuple]:
     return {i: (t[k], c[k]) for k, i in enumerate(keys)}
 
 
-def _layer_findings(g, layer, ids, terms, col_c, col_t, voltage,
-                    working_voltage) -> list[Finding]:
+def _layer_findings(g, layer, ids, terms, needs, voltage, working_voltage) -> list[Finding]:
     nets = sorted({g.island_net[i] for i in ids.tolist()})
     net_code = {n: k for k, n in enumerate(nets)}
     ranges = [voltage(n) for n in nets]
     vmax = max(0.0, max(r.hi for r in ranges) - min(r.lo for r in ranges))
-    reach = ipc2221b_spacing(vmax, col_c).mm
-    if terms:
-        reach = max(reach, ipc2221b_spacing(vmax, col_t).mm)
+    reach = needs.reach(vmax, bool(terms))
 
     geoms = np.array([g.islands[i].geometry for i in ids.tolist()], dtype=object)
     code = np.array([net_code[g.island_net[i]] for i in ids.tolist()], dtype=np.int64)
@@ -165,13 +275,10 @@ def _layer_findings(g, layer, ids, terms, col_c, col_t, voltage,
     r_cond = np.empty(len(uniq))
     r_t_arr = np.empty(len(uniq))
     r_any = np.empty(len(uniq))
-    by_volt: dict[float, tuple] = {}
     for k, pc in enumerate(uniq.tolist()):
         a, b = nets[pc // n], nets[pc % n]
         v = working_voltage(a, b)
-        if v not in by_volt:
-            by_volt[v] = (ipc2221b_spacing(v, col_c), ipc2221b_spacing(v, col_t))
-        rc, rt = by_volt[v]
+        rc, rt = needs.pair(a, b, v)
         req[pc] = (v, rc, rt)
         r_cond[k], r_t_arr[k], r_any[k] = rc.mm, rt.mm, max(rc.mm, rt.mm)
     # exact prefilter per class: the conductor class can only fall short where the islands
@@ -329,20 +436,118 @@ def _mm(x: float) -> str:
     return f"{whole}.{frac.ljust(2, '0')}"
 
 
-def _finding(layer, net_a, net_b, cls, d, r, v, p, q, closest, also) -> Finding:
+def _finding(layer, net_a, net_b, cls, d, r, v, p, q, closest, also, via=None,
+             path=None) -> Finding:
     at = " at a component termination" if cls == "termination" else ""
-    ref = load_table("ipc2221b").reference
-    msg = (f"{net_a} and {net_b} are {_mm(d)} mm apart on {layer}{at}; {_mm(r.mm)} mm "
-           f"required at {v:g} V ({ref} {r.column}, {r.row})")
-    extra = {"class": cls, "column": r.column, "row": r.row, "closest_mm": round(closest, 7)}
+    through = (f" through {', '.join(via)} (no potential of its own: zero length)"
+               if via else "")
+    if isinstance(r, Need):
+        label = f"{r.by}, {r.insulation} insulation"
+        extra = {"class": cls, "standard": r.by, "insulation": r.insulation}
+    else:
+        label = f"{load_table('ipc2221b').reference} {r.column}, {r.row}"
+        extra = {"class": cls, "column": r.column, "row": r.row}
+    msg = (f"{net_a} and {net_b} are {_mm(d)} mm apart on {layer}{at}{through}; "
+           f"{_mm(r.mm)} mm required at {v:g} V ({label})")
+    extra["closest_mm"] = round(closest, 7)
     if also:
         o_cls, o_r, o_d = also[0]
         what = "a component termination" if o_cls == "termination" else "conductor copper"
+        o_label = o_r.by if isinstance(o_r, Need) else o_r.column
         msg += (f"; here {what} is also {_mm(o_d)} mm away ({_mm(o_r.mm)} mm required, "
-                f"{o_r.column})")
-        extra["also"] = [{"class": c, "column": rr.column, "measured_mm": round(dd, 7),
-                          "required_mm": rr.mm} for c, rr, dd in also]
+                f"{o_label})")
+        key = "standard" if isinstance(o_r, Need) else "column"
+        extra["also"] = [{"class": c, key: (rr.by if isinstance(rr, Need) else rr.column),
+                          "measured_mm": round(dd, 7), "required_mm": rr.mm}
+                         for c, rr, dd in also]
+    if via:
+        extra["via"] = list(via)
+    if path is not None:
+        extra["path"] = [[round(float(x), 6), round(float(y), 6)] for x, y in path]
     return Finding(
         rule="clearance", severity="error", message=msg + ".", layer=layer,
         nets=[net_a, net_b], measured_mm=round(d, 7), required_mm=r.mm, voltage_v=v,
         basis=r.basis, where=p, to=q, extra=extra)
+
+
+# -- earth conductors and chains through floating copper ---------------------------------
+
+def _earth_and_chains(ctx: CheckContext, g, direct: list[Finding],
+                      rules: PairRules | None) -> list[Finding]:
+    """Add net-to-earth findings and chain findings (see the module docstring) to
+    ``direct``; a chain replaces the direct findings it beats in the same place."""
+    board, project = ctx.board, ctx.project
+    env = project.environment
+    out = list(direct)
+    for layer in g.layers:
+        ends = end_conductors(board, g, project, layer)
+        earth = [c for c in ends if c.kind == "earth"]
+        stones = stepping_stones(board, g, layer)
+        if not earth and not stones:
+            continue
+        outer = board.is_outer(layer)
+        if rules is None:
+            col_c, _ = ipc2221b_column(outer, env.coating, env.altitude_m, False)
+            col_t, _ = ipc2221b_column(outer, env.coating, env.altitude_m, True)
+
+            def need(a, b, v):
+                rc, rt = ipc2221b_spacing(v, col_c), ipc2221b_spacing(v, col_t)
+                return (rt, "termination") if rt.mm > rc.mm else (rc, "conductor")
+        else:
+            def need(a, b, v):
+                kind, _ = pair_insulation(project, a.name, b.name)
+                req = rules.get(kind, v, outer, a.terminations or b.terminations)
+                for line in req.assumptions:
+                    ctx.assume("clearance", line)
+                return Need.of(req, kind), "conductor"
+        vmax = voltage_span(project, ends)
+        if rules is None:
+            reach = max(ipc2221b_spacing(vmax, col_c).mm, ipc2221b_spacing(vmax, col_t).mm)
+        else:
+            reach = rules.reach(vmax, "clearance_mm", outer)
+        ends = sorted(ends, key=lambda c: c.name)
+
+        # nets to earth, place by place
+        if earth:
+            needs: dict[tuple[int, int], tuple] = {}
+
+            def pair_need(i, j):
+                if (i, j) not in needs:
+                    v = pair_voltage(project, ends[i].name, ends[j].name)
+                    needs[(i, j)] = (v,) + tuple(need(ends[i], ends[j], v))
+                return needs[(i, j)]
+
+            def earth_pair(i, j):
+                return (ends[i].kind == "earth") != (ends[j].kind == "earth")
+
+            for i, j, A, B in close_pairs(ends, reach, lambda i, j: pair_need(i, j)[1].mm,
+                                          TOLERANCE_MM, earth_pair):
+                v, r, cls = pair_need(i, j)
+                for place in close_places(A, B, r.mm):
+                    line = shapely.shortest_line(place, B)
+                    d = float(shapely.length(line))
+                    if d < r.mm - TOLERANCE_MM:
+                        p, q = shapely.get_coordinates(line)[:2]
+                        out.append(_finding(layer, ends[i].name, ends[j].name, cls, d, r, v,
+                                            tuple(map(float, p)), tuple(map(float, q)), d,
+                                            []))
+
+        # chains through floating copper
+        chains = shortest_chains(ends, stones, straight_gaps, reach)
+        for ch in chains:
+            a, b = ends[ch.a], ends[ch.b]
+            v = pair_voltage(project, a.name, b.name)
+            r, cls = need(a, b, v)
+            if ch.length >= r.mm - TOLERANCE_MM:
+                continue
+            path = ch.path()
+            f = _finding(layer, a.name, b.name, cls, ch.length, r, v,
+                         tuple(map(float, path[0])), tuple(map(float, path[-1])), ch.length,
+                         [], via=[stones[k].name for k in ch.stones], path=path)
+            same = [x for x in out if x.layer == layer and x.nets == f.nets]
+            keep, removed = supersede(same, f, r.mm, TOLERANCE_MM)
+            if keep:
+                gone = {id(x) for x in removed}
+                out = [x for x in out if id(x) not in gone]
+                out.append(f)
+    return out

@@ -11,7 +11,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .checks import CheckContext, rule_modules, run_checks
+from .checks import CheckContext, applicable_modules, run_checks
 from .errors import InputFileError, ProjectFileError
 from .findings import Finding
 from .limits import DEFAULT_LIMITS, Limits
@@ -98,7 +98,8 @@ def review(path: Path | str, project_path: Path | str | None = None, *,
     board = read_board(fab_path, project, limits=limits, progress=progress)
     graph = build_netgraph(board)
     ctx = CheckContext(board, graph, project)
-    findings = run_checks(ctx, project.ignore_rules)
+    modules = applicable_modules(ctx, project.ignore_rules)
+    findings = run_checks(ctx, project.ignore_rules, modules)
     assumptions: list[Assumption] = []
     for a in (*project.assumptions, *board.assumptions, *ctx.assumptions,
               *project.voltage_assumptions(graph.nets)):
@@ -107,6 +108,5 @@ def review(path: Path | str, project_path: Path | str | None = None, *,
     if project.ignore_rules:
         assumptions.append(Assumption("rules", "not run, as the project file says: " +
                                       ", ".join(project.ignore_rules)))
-    ran = [rid for mod in rule_modules() if mod.RULE_IDS[0] not in project.ignore_rules
-           for rid in mod.RULE_IDS if rid not in project.ignore_rules]
+    ran = [rid for mod in modules for rid in mod.RULE_IDS if rid not in project.ignore_rules]
     return Review(board, graph, project, findings, assumptions, ran)

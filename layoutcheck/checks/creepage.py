@@ -57,6 +57,14 @@ TOLERANCE_MM = DISTANCE_RESOLUTION_MM / 2
 _LIST_BRIDGED = 10
 
 
+def applies(ctx: CheckContext) -> str | None:
+    """``None`` when the rule applies, else why not (creepage is an IEC 60664-1 measure)."""
+    if ctx.project.environment.standard in ("iec60664-1", "both"):
+        return None
+    return ('the spacing standard is IPC-2221B alone, which has no creepage rule; set '
+            '[environment] standard = "iec60664-1" or "both" to check creepage')
+
+
 def run(ctx: CheckContext) -> list[Finding]:
     """Creepage findings on the outer layers (see the module docstring)."""
     return findings(ctx)

@@ -112,7 +112,7 @@ class Need:
 
     @classmethod
     def of(cls, req: Requirement, kind: str) -> "Need":
-        return cls(req.clearance_mm, "; ".join(req.basis), req.clearance_by, kind)
+        return cls(req.clearance_mm, req.brief("clearance"), req.clearance_by, kind)
 
 
 class _IpcNeeds:

@@ -244,7 +244,7 @@ def _finding(layer, a, b, length, req, v, kind, path, geos, via, domain, straigh
     return Finding(
         rule="creepage", severity="error", message=msg + ".", layer=layer, nets=[a, b],
         measured_mm=round(length, 7), required_mm=req.creepage_mm, voltage_v=v,
-        basis="; ".join(req.basis), where=(float(pts[0][0]), float(pts[0][1])),
+        basis=req.brief("creepage"), where=(float(pts[0][0]), float(pts[0][1])),
         to=(float(pts[-1][0]), float(pts[-1][1])), extra=extra)
 
 

@@ -131,6 +131,24 @@ class Requirement:
     warnings: tuple[str, ...] = ()
     from_memory: bool = False
 
+    def brief(self, what: str) -> str:
+        """The basis lines a reviewer quotes for ``what`` (``"clearance"`` or
+        ``"creepage"``): the table, column and row lines and the governing choice, joined
+        with "; ".  :attr:`basis` keeps the whole chain."""
+        if what == "clearance":
+            keys = ("Table F.1", "Table F.2", "Table F.7a", "Table 6-1", "next higher step",
+                    "160 %")
+            alt = [b for b in self.basis if "Table A.2" in b and "factor 1.00" not in b]
+        elif what == "creepage":
+            keys = ("Table F.4", "raised", "twice", "Table 6-1")
+            alt = []
+        else:
+            raise UsageError(f"brief() takes 'clearance' or 'creepage', not {what!r}")
+        picked = [b for b in self.basis
+                  if (any(k in b for k in keys) and "creepage columns" not in b)
+                  or b.startswith(f"{what}:")] + alt
+        return "; ".join(picked or self.basis)
+
 
 def _g(x: float) -> str:
     return f"{round(x, 6):g}"

@@ -77,6 +77,13 @@ def render(review) -> str:
             if f.where is not None:
                 loc = _xy(f.where) + (f" to {_xy(f.to)}" if f.to is not None else "")
                 lines.append(f"         at {loc} mm")
+            if f.extra.get("via"):
+                lines.extend(_wrap("through floating copper: " + ", ".join(f.extra["via"]),
+                                   "         "))
+            if f.extra.get("path") and len(f.extra["path"]) > 2:
+                pts = " -> ".join(f"({x:.2f}, {y:.2f})" for x, y in f.extra["path"][:6])
+                more = " ..." if len(f.extra["path"]) > 6 else ""
+                lines.extend(_wrap(f"surface path: {pts}{more}", "         "))
             if f.basis:
                 lines.extend(_wrap("basis: " + f.basis, "         "))
         lines.append("")

@@ -199,7 +199,7 @@ def test_iec_clearance_basis_and_both():
         found = clearance.run(ctx)
         assert len(found) == 1
         f = found[0]
-        assert f.required_mm == req.clearance_mm and f.basis == "; ".join(req.basis)
+        assert f.required_mm == req.clearance_mm and f.basis == req.brief("clearance")
         assert f.extra["standard"] == req.clearance_by and f.measured_mm == pytest.approx(gap)
         if std == "both":
             assert "governs" in f.basis

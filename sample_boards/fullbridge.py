@@ -3,10 +3,11 @@
 Invented demo data: no real product, part number or brand.  Two revisions of one 2-layer,
 1.6 mm, 35 um board of 120 x 90 mm (origin at the lower-left corner, y up, millimetres):
 
-* ``build("a")`` - rev-a, with four planted spacing problems (see PLANTED below and
-  README.md) and film capacitor C5 about 40 mm away from leg A (a large commutation loop);
-* ``build("b")`` - rev-b, every problem fixed and C5 tight against Q1/Q2 with the bus return
-  poured on the bottom layer directly under the HV_BUS top copper.
+* ``build("a")`` - rev-a, with four planted clearance problems and one planted creepage
+  problem (see PLANTED below and README.md) and film capacitor C5 about 40 mm away from
+  leg A (a large commutation loop);
+* ``build("b")`` - rev-b, every problem fixed (the creepage one with a routed slot,
+  :data:`CREEPAGE_SLOT`) and C5 beside leg A.
 
 Circuit (nets in capitals):
   J1 (bus in): 1 HV_BUS, 2 HV_RTN.  J2 (bridge out): 1 OUT_A = SW_A, 2 OUT_B = SW_B.
@@ -26,42 +27,43 @@ Circuit (nets in capitals):
   leg A), so a netlist keeps the two names apart and the single tie point is explicit.
 
 Drawing conventions: power nets are top-layer pours (HV_BUS) and a bottom-layer pour
-(HV_RTN) computed here with shapely as "area minus other copper grown by the clearance";
+(HV_RTN) computed here with shapely as "area minus other copper grown by the spacing";
 logic rails run on the bottom layer; the switch nodes leave the legs through vias and run
-to J2 on the bottom layer.
+to J2 on the bottom layer.  Non-plated routed slots between the MOSFET legs lengthen the
+surface path between neighbouring pins (both revisions).
 
-Voltage model: the project file text :data:`PROJECT_TEXT` (written beside the fab files as
-``layoutcheck.toml``) is the one source of the node voltages.  SW_x swings 0..400 V, and
-VB_x, HO_x and the high-side gate net are declared relative to it (``{ on = "SW_A",
+Voltage model and spacing: the project file text :data:`PROJECT_TEXT` (written beside the
+fab files as ``layoutcheck.toml``) is the one source of the node voltages and of the
+spacing standard (IPC-2221B and IEC 60664-1, the larger governs).  SW_x swings 0..400 V,
+and VB_x, HO_x and the high-side gate net are declared relative to it (``{ on = "SW_A",
 volts = 15 }``), so between two nets riding on one switch node the working voltage is at
-most 15 V.  :func:`spacing_violations` takes the working voltage of every pair from
-``layoutcheck.project.Project.working_voltage`` on that text.
+most 15 V.  :func:`pair_targets` takes the working voltage of every pair from
+``layoutcheck.project.Project.working_voltage`` and the required distances from
+``layoutcheck.physics.requirements.required_spacing``; the self-check is in
+:mod:`spacing_check`.
 """
 from __future__ import annotations
 
 import math
 import tomllib
-from dataclasses import dataclass
+from functools import lru_cache
+from typing import NamedTuple
 
 import shapely
 from shapely.geometry import Polygon, box
 from shapely.ops import unary_union
 
+from layoutcheck.physics.requirements import SpacingProfile, required_spacing
 from layoutcheck.project import project_from_data
 from layoutcheck.writers.design import (Design, NonPlatedHole, PadTemplate, Part, Slot,
-                                        Track, Via, place_pads, track_polygon,
+                                        Track, Via, place_pads, slot_polygon, track_polygon,
                                         zones_from_geometry)
 
 BOARD_W, BOARD_H = 120.0, 90.0
 
-#: Later creepage work: set this to a Slot to cut a non-plated slot into rev-b's 3.05 mm
-#: gap between the HV_BUS bus bar (lower edge y = 46.0) and the +5V run (upper edge
-#: y = 42.95), e.g. ``Slot([(9.0, 44.475), (20.0, 44.475)], 1.0)``.
-CREEPAGE_SLOT: Slot | None = None
-
 # --------------------------------------------------------------------------- voltages
-#: The project file of both revisions (``layoutcheck.toml``), and the voltage model the
-#: self-check uses.  Volts.
+#: The project file of both revisions (``layoutcheck.toml``), and the voltage model and
+#: environment the self-check uses.  Volts.
 PROJECT_TEXT = """\
 # layoutcheck project file for the invented full-bridge demo board (revisions a and b).
 # Invented demo data; see ../README.md.
@@ -91,10 +93,21 @@ files = "."
 [environment]
 altitude_m = 0
 coating = "none"
+standard = "both"            # IPC-2221B Table 6-1 and IEC 60664-1; the larger governs
+pollution_degree = 2         # IEC 60664-1: only non-conductive pollution, now and then
+                             # conductive for a while from condensation
+material_group = "IIIa"      # board laminate with a CTI of 175 V up to 400 V
+overvoltage_category = "II"  # IEC 60664-1 Table F.1: equipment fed from the installation
 """
 
 #: :data:`PROJECT_TEXT` loaded by the package's own project reader.
 PROJECT = project_from_data(tomllib.loads(PROJECT_TEXT), None)
+
+#: Every distance this design keeps is the requirement plus this much (mm).
+MARGIN = 0.2
+
+#: Pours keep this much more than the target (mm), so flattened arcs never eat into it.
+POUR_MARGIN = 0.04
 
 
 def working_voltage(a: str, b: str) -> float:
@@ -102,28 +115,49 @@ def working_voltage(a: str, b: str) -> float:
     return PROJECT.working_voltage(a, b)
 
 
-def target_gap(v: float) -> float:
-    """The spacing (mm) this design keeps for working voltage ``v`` (V).
+@lru_cache(maxsize=None)
+def _profile(insulation: str) -> SpacingProfile:
+    e = PROJECT.environment
+    return SpacingProfile(standard=e.standard, pollution_degree=e.pollution_degree,
+                          material_group=e.material_group,
+                          overvoltage_category=e.overvoltage_category,
+                          insulation=insulation, altitude_m=e.altitude_m, coating=e.coating,
+                          interpolate=e.interpolate, creepage_columns=e.creepage_columns)
 
-    Comfortably above IPC-2221B Table 6-1 columns B2 (external conductors) and A6
-    (component terminations), uncoated, sea level to 3050 m (values from memory):
-    301-500 V -> B2 2.5 mm, A6 1.5 mm, we keep 3.0; 151-300 V -> B2 1.25 mm, A6 0.8 mm,
-    we keep 1.5; 31-150 V -> B2 0.6 mm, A6 0.4-0.8 mm, we keep 1.0; 30 V and lower ->
-    B2 0.1 mm, A6 0.25 mm at most, we keep 0.5 (the drivers' neighbouring pins, 1.27 mm
-    pitch with 0.6 mm pads, are 0.67 mm apart).
+
+@lru_cache(maxsize=None)
+def required(volts: float, insulation: str = "functional") -> tuple[float, float]:
+    """(clearance, creepage) in mm that :data:`PROJECT_TEXT`'s environment asks for at
+    ``volts`` (V) across ``insulation``, external layer.
+
+    ``layoutcheck.physics.requirements.required_spacing`` with the project's standard
+    ("both": the larger of IPC-2221B Table 6-1 and IEC 60664-1), the working voltage also
+    as the RMS value for the creepage row; the larger of the conductor and the
+    component-termination case.
     """
-    if v > 300:
-        return 3.0
-    if v > 150:
-        return 1.5
-    if v > 30:
-        return 1.0
-    return 0.5
+    reqs = [required_spacing(_profile(insulation), volts, rms_v=volts, layer_outer=True,
+                             termination=t) for t in (False, True)]
+    return max(r.clearance_mm for r in reqs), max(r.creepage_mm for r in reqs)
 
 
-#: Pours keep this much more than :func:`target_gap` (mm), so flattened arcs never eat
-#: into the target.
-POUR_MARGIN = 0.04
+def pair_targets(a: str, b: str) -> tuple[float, float, float]:
+    """(working voltage V, clearance target mm, creepage target mm) for nets ``a``, ``b``.
+
+    The targets are :func:`required` plus :data:`MARGIN`; the insulation kind comes from the
+    project's ``[[insulation]]`` entries (none here: functional).
+    """
+    v = working_voltage(a, b)
+    kind, _ = PROJECT.insulation_between(a, b)
+    clr, crp = required(v, kind)
+    return v, clr + MARGIN, crp + MARGIN
+
+
+def target_gap(a: str, b: str) -> float:
+    """The straight spacing (mm) this design keeps between nets ``a`` and ``b`` wherever
+    no slot lengthens the surface path: the creepage target (never below the clearance)."""
+    _, clr, crp = pair_targets(a, b)
+    return max(clr, crp)
+
 
 # --------------------------------------------------------------------------- footprints
 def _two_pin(pitch: float, pad: float, drill: float | None, *, square1: bool = False,
@@ -135,7 +169,13 @@ def _two_pin(pitch: float, pad: float, drill: float | None, *, square1: bool = F
 
 SMD_1206 = [PadTemplate("1", -1.6, 0.0, "roundrect", 1.0, 1.6, corner_radius=0.25),
             PadTemplate("2", 1.6, 0.0, "roundrect", 1.0, 1.6, corner_radius=0.25)]
-TO247 = [PadTemplate(str(i + 1), (i - 1) * 5.45, 0.0, "oval", 2.4, 3.2, 1.4) for i in range(3)]
+#: TO-247 style: 5.45 mm pitch, 1.4 mm holes, 2.2 x 3.2 mm oval pads (3.25 mm between pads).
+TO247_PITCH = 5.45
+TO247 = [PadTemplate(str(i + 1), (i - 1) * TO247_PITCH, 0.0, "oval", 2.2, 3.2, 1.4)
+         for i in range(3)]
+#: Routed non-plated slots between MOSFET legs: width (mm, at least X = 1.0 mm in
+#: pollution degree 2) and half the length of the tool path (mm) about the pin row.
+LEG_SLOT_WIDTH, LEG_SLOT_HALF = 1.2, 3.0
 #: The drivers' pin numbers (package positions) and names.
 DRIVER_PINS = {"1": "VCC", "2": "HIN", "3": "LIN", "4": "COM", "5": "LO", "14": "VS",
                "15": "HO", "16": "VB"}
@@ -164,6 +204,21 @@ DRIVER_FOOTPRINT = _wide_so16(DRIVER_PINS)
 def _header(n: int, pitch: float = 2.54) -> list[PadTemplate]:
     return [PadTemplate(str(i + 1), i * pitch, 0.0, "rect" if i == 0 else "circle", 1.7,
                         None, 1.0) for i in range(n)]
+
+
+# --------------------------------------------------------------------------- the planted spot
+#: The creepage demonstration: the +5V run from J3 to C9 passes under the HV_BUS bus bar
+#: (lower edge y = 46.0) with a straight gap of this much (mm): above the clearance
+#: (IPC-2221B 2.5 mm, IEC 60664-1 3.0 mm at 395 V) and below the creepage (4.0 mm).
+CREEPAGE_GAP = 3.3
+BUS_BAR_Y = 46.0
+PLUS5_RUN_Y = round(BUS_BAR_Y - CREEPAGE_GAP - 0.4, 6)     # centre line, track 0.8 mm wide
+#: rev-b's fix: a non-plated routed slot (1.2 mm wide, at least X) along the middle of the
+#: gap, 3.5 mm past each end of the +5V run.
+CREEPAGE_SLOT: Slot | None = Slot([(6.0, round(BUS_BAR_Y - CREEPAGE_GAP / 2, 6)),
+                                   (22.5, round(BUS_BAR_Y - CREEPAGE_GAP / 2, 6))], 1.2)
+#: Pours keep this much copper-free board (mm) around every slot.
+SLOT_KEEPOUT = 0.5
 
 
 # --------------------------------------------------------------------------- builder
@@ -207,27 +262,36 @@ class _Board:
     def via(self, net, x, y, pad=0.7, drill=0.35):
         self.d.vias.append(Via(net, x, y, pad, drill))
 
-
-def _nets_seen(d: Design, layer: str):
-    return [p for p in d.copper() if p.layer == layer]
+    def leg_slots(self, x: float, y: float, between) -> None:
+        """Slots between the legs of a TO-247 row at (x, y): ``between`` gives, for each
+        slot, its offset along the row in pin pitches from the middle pin (-0.5, 0.5)."""
+        for k in between:
+            sx = round(x + k * TO247_PITCH, 6)
+            self.d.slots.append(Slot([(sx, round(y - LEG_SLOT_HALF, 6)),
+                                      (sx, round(y + LEG_SLOT_HALF, 6))], LEG_SLOT_WIDTH))
 
 
 def pour(d: Design, net: str, layer: str, region, *, extra_cuts=(), ignore_nets=()) -> list:
     """Zones for ``net`` on ``layer``: ``region`` minus every other net's copper grown by
-    :func:`target_gap` + :data:`POUR_MARGIN` (mm), minus ``extra_cuts`` (geometry,
-    clearance) pairs; islands that touch no copper of ``net`` are dropped.
+    :func:`target_gap` + :data:`POUR_MARGIN` (mm), minus the holes (1.0 mm around) and slots
+    (:data:`SLOT_KEEPOUT` around), minus ``extra_cuts`` (geometry, clearance) pairs;
+    islands that touch no copper of ``net`` are dropped.
     """
     cuts, own = [], []
-    for piece in _nets_seen(d, layer):
+    for piece in d.copper():
+        if piece.layer != layer:
+            continue
         if piece.net == net:
             own.append(piece.geometry)
             continue
         if piece.net in ignore_nets:
             continue
-        c = target_gap(working_voltage(net, piece.net or "")) + POUR_MARGIN
+        c = target_gap(net, piece.net or "") + POUR_MARGIN
         cuts.append(piece.geometry.buffer(c, quad_segs=16))
     for h in d.holes:
         cuts.append(shapely.Point(h.x, h.y).buffer(h.d / 2 + 1.0, quad_segs=16))
+    for s in d.slots:
+        cuts.append(slot_polygon(s).buffer(SLOT_KEEPOUT, quad_segs=16))
     for geom, c in extra_cuts:
         cuts.append(geom.buffer(c, quad_segs=16))
     area = region.difference(unary_union(cuts))
@@ -276,21 +340,27 @@ def build(rev: str) -> Design:
     b.two("C2", "capacitor", "220 uF 250 V electrolytic", "RADIAL-D16-P7.5", (22.0, 65.5),
           (22.0, 73.0), ("MID", "HV_RTN"), pad=2.6, drill=1.3, square1=True,
           pins={"1": "+", "2": "-"}, capacitance_f=220e-6, rating_v=250)
-    b.two("R1", "resistor", "220 kOhm 0.6 W", "AXIAL-P15.24", (28.5, 80.74), (28.5, 65.5),
+    b.two("R1", "resistor", "220 kOhm 0.6 W", "AXIAL-P15.24", (28.5, 77.5), (28.5, 62.26),
           ("HV_BUS", "MID"), pad=2.0, drill=1.0, resistance_ohm=220e3, rating_v=350)
-    b.two("R2", "resistor", "220 kOhm 0.6 W", "AXIAL-P15.24", (34.0, 65.5), (34.0, 80.74),
+    b.two("R2", "resistor", "220 kOhm 0.6 W", "AXIAL-P15.24", (35.5, 62.26), (35.5, 77.5),
           ("MID", "HV_RTN"), pad=2.0, drill=1.0, resistance_ohm=220e3, rating_v=350)
-    b.track("MID", "top", 1.0, (22.0, 58.0), (22.0, 65.5), (34.0, 65.5))
+    b.track("MID", "top", 1.0, (22.0, 58.0), (22.0, 65.5))
+    b.track("MID", "top", 1.0, (22.0, 62.26), (35.5, 62.26))
 
     # ---- film capacitors
     if a:   # C5 ~40 mm from leg A, in the upper-left corner: large commutation loop.
         c5 = ((10.0, 84.5), (10.0, 77.0))
-    else:   # C5 right between Q1 (D) and Q2 (S): small loop.
-        c5 = ((48.0, 67.5), (48.0, 60.0))
+    else:   # C5 right beside leg A, clear of the switch-node column: small loop.
+        c5 = ((60.5, 67.5), (60.5, 60.0))
     b.two("C5", "capacitor", "1 uF 630 V film", "BOX-P7.5", c5[0], c5[1],
           ("HV_BUS", "HV_RTN"), pad=2.2, drill=1.0, capacitance_f=1e-6, rating_v=630)
-    b.two("C6", "capacitor", "1 uF 630 V film", "BOX-P7.5", (84.0, 67.5), (84.0, 60.0),
+    b.two("C6", "capacitor", "1 uF 630 V film", "BOX-P7.5", (96.5, 67.5), (96.5, 60.0),
           ("HV_BUS", "HV_RTN"), pad=2.2, drill=1.0, capacitance_f=1e-6, rating_v=630)
+    # The film capacitors' HV_BUS pins go straight up into the HV_BUS strip; their HV_RTN
+    # pins sit in the bottom HV_RTN pour.
+    b.track("HV_BUS", "top", 1.6, (96.5, 67.5), (96.5, 78.0))
+    if not a:
+        b.track("HV_BUS", "top", 1.6, (60.5, 67.5), (60.5, 78.0))
 
     # ---- the two legs (leg B = leg A moved 36 mm right)
     for leg, dx, qh, ql, sw, gh, gl in (("A", 0.0, "Q1", "Q2", "SW_A", "G_Q1", "G_Q2"),
@@ -301,24 +371,24 @@ def build(rev: str) -> Design:
         b.part(ql, "mosfet", "650 V 40 mOhm N-channel MOSFET", "TO-247-3", TO247,
                {"1": gl, "2": sw, "3": "HV_RTN"}, at=(53.45 + dx, 56.0), rotation=180,
                pins={"1": "G", "2": "D", "3": "S"}, vds_v=650, rds_on_ohm=0.04)
+        # Slots where neighbouring legs are 400 V apart: high side G-D and D-S (its G-S
+        # are 15 V apart), low side G-D and D-S.
+        b.leg_slots(48.0 + dx, 72.0, (-0.5, 0.5))
+        b.leg_slots(53.45 + dx, 56.0, (-0.5, 0.5))
         # HV_BUS neck from the drain up into the top pour; switch-node column.
         b.track("HV_BUS", "top", 2.0, (48.0 + dx, 72.0), (48.0 + dx, 78.0))
-        b.track(sw, "top", 2.4, (53.45 + dx, 72.0), (53.45 + dx, 42.5))
-
-    # Film capacitor of leg B (both revisions) and of leg A (rev-b) wired to the legs.
-    b.track("HV_BUS", "top", 1.6, (84.0, 72.0), (84.0, 67.5))
-    b.track("HV_RTN", "top", 1.6, (84.0, 60.0), (84.0, 56.0))
-    if not a:
-        b.track("HV_BUS", "top", 1.6, (48.0, 72.0), (48.0, 67.5))
-        b.track("HV_RTN", "top", 1.6, (48.0, 60.0), (48.0, 56.0))
+        b.track(sw, "top", 2.2, (53.45 + dx, 72.0), (53.45 + dx, 42.5))
 
     # Switch nodes to J2 on the bottom layer.
     for y in (42.5, 44.7, 46.9):
         b.via("SW_A", 53.45, y, pad=1.6, drill=0.8)
     for y in (49.6, 51.8):
         b.via("SW_B", 89.45, y, pad=1.6, drill=0.8)
-    b.track("SW_A", "bottom", 3.0, (53.45, 42.5), (113.0, 42.5))
-    b.track("SW_B", "bottom", 3.0, (89.45, 49.6), (113.0, 49.6))
+    # SW_A keeps 5.3 mm from D2's VB_B pad (415 V), then drops so that SW_B can pass
+    # under Q4's gate pad with 5.2 mm and still keep 4.3 mm from SW_A and J2 pin 1.
+    b.track("SW_A", "bottom", 2.4, (53.45, 43.0), (85.0, 43.0), (87.0, 41.3), (113.0, 41.3))
+    b.track("SW_B", "bottom", 2.4, (89.45, 49.6), (91.05, 48.0), (99.0, 48.0),
+            (101.0, 49.6), (113.0, 49.6))
 
     # ---- drivers and their surroundings (leg B = leg A + 36 mm)
     for leg, dx in (("A", 0.0), ("B", 36.0)):
@@ -353,23 +423,24 @@ def build(rev: str) -> Design:
               (44.0 + dx, 35.5), (33.84 + dx, 35.5), (vb, "+15V"), pad=2.0, drill=1.0,
               square1=True, pins={"1": "K", "2": "A"}, rating_v=600)
         b.track(vb, "top", 0.5, (x_ho - 1.6, 35.5), (44.0 + dx, 35.5))
-        # High-side gate: HO -> R (x = 43) -> G of the high-side MOSFET.
-        b.track(ho, "top", 0.4, (x_ho, top), (x_ho, 38.0), (43.0 + dx, 38.0), (43.0 + dx, 44.4))
-        b.smd(r_hi, "resistor", "10 Ohm", (43.0 + dx, 44.4), (43.0 + dx, 47.6), (ho, gh),
+        # High-side gate: HO -> R (x = 41) -> G of the high-side MOSFET, kept left of the
+        # low-side MOSFET's HV_RTN source (415 V between them).
+        b.track(ho, "top", 0.4, (x_ho, top), (x_ho, 38.0), (41.0 + dx, 38.0), (41.0 + dx, 44.4))
+        b.smd(r_hi, "resistor", "10 Ohm", (41.0 + dx, 44.4), (41.0 + dx, 47.6), (ho, gh),
               resistance_ohm=10.0)
-        b.track(gh, "top", 0.5, (43.0 + dx, 47.6), (43.0 + dx, 70.2), (42.55 + dx, 72.0))
+        b.track(gh, "top", 0.5, (41.0 + dx, 47.6), (41.0 + dx, 71.0), (42.55 + dx, 72.0))
         # Low-side gate: LO leaves along its row through the empty positions 6-8, then
-        # runs up the right of the driver at x = 58.9 to R.
+        # runs up the right of the driver at x = 59.9 to R.
         if a and leg == "A":
-            # Planted problem 2 (rev-a): above the driver LO_A jogs left to x = 55.68
-            # (y 35.4-40), 1.2 mm from the SW_A pad of C3 (x <= 54.28), then back to R4.
-            b.track(lo, "top", 0.4, (x_lo, bot), (58.9, bot), (58.9, 35.4), (55.68, 35.4),
-                    (55.68, 40.0), (58.9, 40.0), (58.9, 44.4))
+            # Planted problem 2 (rev-a): LO_A swings left round R4 (y 42.5-44.4) to
+            # x = 55.95, 1.2 mm from the 2.2 mm switch-node column (x <= 54.55).
+            b.track(lo, "top", 0.4, (x_lo, bot), (59.9, bot), (59.9, 42.5), (55.95, 42.5),
+                    (55.95, 44.4), (59.9, 44.4))
         else:
-            b.track(lo, "top", 0.4, (x_lo, bot), (58.9 + dx, bot), (58.9 + dx, 44.4))
-        b.smd(r_lo, "resistor", "10 Ohm", (58.9 + dx, 44.4), (58.9 + dx, 47.6), (lo, gl),
+            b.track(lo, "top", 0.4, (x_lo, bot), (59.9 + dx, bot), (59.9 + dx, 44.4))
+        b.smd(r_lo, "resistor", "10 Ohm", (59.9 + dx, 44.4), (59.9 + dx, 47.6), (lo, gl),
               resistance_ohm=10.0)
-        b.track(gl, "top", 0.5, (58.9 + dx, 47.6), (58.9 + dx, 56.0))
+        b.track(gl, "top", 0.5, (59.9 + dx, 47.6), (59.9 + dx, 56.0))
         # Logic side of the driver: pins go down to vias on the bottom-layer rails.
         rails = {"+15V": 12.38, "IN_A": 14.92, "IN_B": 17.46, "GND": 20.0}
         for x, net in ((x_vcc, "+15V"), (x_hin, hin), (x_lin, lin), (x_com, "GND")):
@@ -401,9 +472,10 @@ def build(rev: str) -> Design:
     b.track("IN_B", "bottom", 0.4, (6.0, 37.62), (12.0, 37.62), (12.0, 17.46), (88.18, 17.46))
     b.track("GND", "bottom", 0.6, (6.0, 40.16), (14.0, 40.16), (14.0, 20.0), (90.72, 20.0))
 
-    # +5V: from J3 pin 2 up and along the bus bar (3.05 mm gap) to its decoupling C9.
-    b.track("+5V", "top", 0.8, (6.0, 32.54), (9.5, 32.54), (9.5, 42.55), (19.0, 42.55),
-            (19.0, 40.1))
+    # +5V: from J3 pin 2 up and along the bus bar (the planted creepage spot, 3.3 mm
+    # straight) to its decoupling C9.
+    b.track("+5V", "top", 0.8, (6.0, 32.54), (9.5, 32.54), (9.5, PLUS5_RUN_Y),
+            (19.0, PLUS5_RUN_Y), (19.0, 40.1))
     b.smd("C9", "capacitor", "100 nF 50 V", (19.0, 40.1), (19.0, 36.9), ("+5V", "GND"),
           capacitance_f=100e-9, rating_v=50)
     b.track("GND", "top", 0.5, (19.0, 36.9), (19.0, 35.2))
@@ -411,24 +483,31 @@ def build(rev: str) -> Design:
     b.track("GND", "bottom", 0.5, (19.0, 35.2), (19.0, 20.0))
 
     # GND-HV_RTN tie: 0-ohm R7 on the bottom side below leg A.
-    b.smd("R7", "resistor", "0 Ohm (GND to HV_RTN tie)", (39.0, 48.4), (39.0, 51.6),
+    b.smd("R7", "resistor", "0 Ohm (GND to HV_RTN tie)", (37.0, 48.4), (37.0, 51.6),
           ("GND", "HV_RTN"), side="bottom", resistance_ohm=0.0)
-    b.track("GND", "bottom", 0.6, (39.0, 20.0), (39.0, 48.4))
+    b.track("GND", "bottom", 0.6, (37.0, 20.0), (37.0, 48.4))
 
     # ---- planted problem 4 (rev-a): a bottom-layer HV_BUS track doubling the C5 feed
     # (C5+ -> R1 pin 1) with the HV_RTN pour only 0.8 mm away.
     bottom_bus = None
     if a:
-        bottom_bus = Track("HV_BUS", "bottom", 2.0, [(10.0, 84.5), (28.5, 84.5), (28.5, 80.74)])
+        bottom_bus = Track("HV_BUS", "bottom", 2.0, [(10.0, 84.5), (28.5, 84.5), (28.5, 77.5)])
         d.tracks.append(bottom_bus)
 
-    # ---- pours (made before the planted +15V track of rev-a is added, as a board whose
-    # pour was not refilled after that track went in)
-    hv_bus_region = unary_union([box(3.5, 46.0, 25.0, 53.5),      # bus bar J1 -> C1
-                                 box(14.3, 46.0, 16.9, 88.0),     # column up the left side
-                                 box(3.5, 77.0, 106.0, 88.0)])    # strip over the legs
+    # ---- slots, then pours (made before the planted +15V track of rev-a is added, as a
+    # board whose pour was not refilled after that track went in)
+    if not a and CREEPAGE_SLOT is not None:
+        d.slots.append(CREEPAGE_SLOT)
+    hv_bus_region = unary_union([box(3.5, BUS_BAR_Y, 25.0, 53.5),   # bus bar J1 -> C1
+                                 box(14.3, BUS_BAR_Y, 16.9, 88.0),  # column up the left side
+                                 box(3.5, 77.0, 106.0, 88.0)])      # strip over the legs
     hv_rtn_region = box(3.5, 51.0, 106.0, 88.0)
-    d.zones += pour(d, "HV_BUS", "top", hv_bus_region)
+    # The bus bar's lower edge is the region's edge, CREEPAGE_GAP from the +5V run: the
+    # +5V copper cuts the pour only where it would come closer than that.
+    plus5 = [(p.geometry, CREEPAGE_GAP - 0.005) for p in d.copper()
+             if p.layer == "top" and p.net == "+5V"]
+    d.zones += pour(d, "HV_BUS", "top", hv_bus_region, ignore_nets=("+5V",),
+                    extra_cuts=plus5)
     if bottom_bus is not None:
         d.zones += pour(d, "HV_RTN", "bottom", hv_rtn_region, ignore_nets=("HV_BUS",),
                         extra_cuts=[(track_polygon(bottom_bus), 0.8)]
@@ -438,92 +517,36 @@ def build(rev: str) -> Design:
 
     if planted_15v:
         b.track("+15V", "top", 0.5, *planted_15v)
-    if not a and CREEPAGE_SLOT is not None:
-        d.slots.append(CREEPAGE_SLOT)
     d.validate()
     return d
 
 
 def _bus_pad_cuts(d: Design, layer: str):
-    """HV_BUS pads and vias on ``layer`` with the normal pour clearance (rev-a helper)."""
-    c = target_gap(working_voltage("HV_RTN", "HV_BUS")) + POUR_MARGIN
+    """HV_BUS pads and vias on ``layer`` with the normal pour spacing (rev-a helper)."""
+    c = target_gap("HV_RTN", "HV_BUS") + POUR_MARGIN
     return [(p.geometry, c) for p in d.copper()
             if p.layer == layer and p.net == "HV_BUS" and p.kind in ("pad", "via")]
 
 
-# --------------------------------------------------------------------------- checking
-@dataclass
-class Violation:
-    """Two copper features of different nets closer than :func:`target_gap` (mm, V)."""
+# --------------------------------------------------------------------------- planted
+class Planted(NamedTuple):
+    """A planted problem of rev-a: layer, nets (sorted), smallest straight gap (mm), the
+    area (x0, y0, x1, y1) it lies in (mm), and its kind (``clearance`` / ``creepage``)."""
 
     layer: str
     nets: tuple[str, str]
     gap: float
-    required: float
-    voltage: float
-    where: tuple[float, float]
-    features: tuple[str, str]
+    area: tuple[float, float, float, float]
+    kind: str
 
 
-def spacing_violations(d: Design) -> list[Violation]:
-    """Every pair of same-layer copper features of different nets below the target gap.
-
-    All copper counts.  The working voltage of each pair comes from :data:`PROJECT_TEXT`
-    (:func:`working_voltage`), the gap it needs from :func:`target_gap`.  Uses an STRtree
-    ``dwithin`` query (3.0 mm, the largest target) and shapely distances; sorted by layer,
-    nets, position.  Units: mm, V.
-    """
-    out = []
-    copper = d.copper()
-    for layer in d.layer_names:
-        pieces = [p for p in copper if p.layer == layer and p.net]
-        geoms = [p.geometry for p in pieces]
-        tree = shapely.STRtree(geoms)
-        left, right = tree.query(geoms, predicate="dwithin", distance=3.0)
-        for i, j in zip(left.tolist(), right.tolist()):
-            if i >= j or pieces[i].net == pieces[j].net:
-                continue
-            v = working_voltage(pieces[i].net, pieces[j].net)
-            req = target_gap(v)
-            gap = shapely.distance(geoms[i], geoms[j])
-            if gap < req - 1e-6:
-                line = shapely.shortest_line(geoms[i], geoms[j])
-                c = line.centroid
-                out.append(Violation(layer, tuple(sorted((pieces[i].net, pieces[j].net))),
-                                     round(gap, 4), req, v, (round(c.x, 3), round(c.y, 3)),
-                                     (_describe(pieces[i]), _describe(pieces[j]))))
-    out.sort(key=lambda x: (x.layer, x.nets, x.where))
-    return out
-
-
-def _describe(piece) -> str:
-    if piece.kind == "pad":
-        return f"{piece.ref}.{piece.pin} pad"
-    return f"{piece.net} {piece.kind}"
-
-
-#: The planted problems of rev-a: id -> (layer, nets, smallest gap mm, area box).
+#: The planted problems of rev-a (README.md, "rev-a: the planted problems").  1-4 miss the
+#: clearance; 5 keeps the clearance but misses the creepage on a straight path, and rev-b
+#: keeps the same copper there with :data:`CREEPAGE_SLOT` cut between.
 PLANTED = {
-    1: ("top", ("+15V", "HV_BUS"), 1.0, (21.0, 44.0, 26.0, 46.5)),
-    2: ("top", ("LO_A", "SW_A"), 1.2, (54.0, 33.0, 57.0, 48.0)),
-    3: ("top", ("HV_BUS", "HV_RTN"), 1.0, (4.0, 51.0, 10.0, 55.0)),
-    4: ("bottom", ("HV_BUS", "HV_RTN"), 0.8, (8.0, 79.0, 31.0, 87.0)),
+    1: Planted("top", ("+15V", "HV_BUS"), 1.0, (21.0, 44.0, 26.0, 46.5), "clearance"),
+    2: Planted("top", ("LO_A", "SW_A"), 1.2, (54.0, 41.0, 57.0, 45.5), "clearance"),
+    3: Planted("top", ("HV_BUS", "HV_RTN"), 1.0, (4.0, 51.0, 10.0, 55.0), "clearance"),
+    4: Planted("bottom", ("HV_BUS", "HV_RTN"), 0.8, (8.0, 76.0, 31.0, 87.0), "clearance"),
+    5: Planted("top", ("+5V", "HV_BUS"), CREEPAGE_GAP, (8.5, 42.0, 20.0, 46.5), "creepage"),
 }
-
-
-def classify(violations: list[Violation]) -> dict[int | None, list[Violation]]:
-    """Sort violations into planted problems (by layer, nets and area); ``None`` = other.
-
-    Problem 3 (J1's pads) shows on both layers, so its bottom-layer copy is accepted too.
-    """
-    out: dict[int | None, list[Violation]] = {}
-    for v in violations:
-        key = None
-        for pid, (layer, nets, _gap, (x0, y0, x1, y1)) in PLANTED.items():
-            layers = (layer, "bottom") if pid == 3 else (layer,)
-            if v.layer in layers and v.nets == nets and x0 <= v.where[0] <= x1 \
-                    and y0 <= v.where[1] <= y1:
-                key = pid
-                break
-        out.setdefault(key, []).append(v)
-    return out

@@ -4,8 +4,9 @@ Writes ``fullbridge-rev-a/`` and ``fullbridge-rev-b/`` beside this file: Gerber 
 and profile layers, the plated and non-plated NC drill files and ``layoutcheck.toml``
 (``fullbridge.PROJECT_TEXT``, the same text for both revisions).
 Before writing, the spacing of each revision is checked with shapely against the design's
-own targets (see ``fullbridge.spacing_violations``): rev-a must show exactly the four
-planted problems, rev-b none.  Output is byte-for-byte deterministic.
+own clearance and creepage targets (see ``spacing_check``): rev-a must show exactly the
+five planted problems (four clearance, one creepage), rev-b none.  Output is byte-for-byte
+deterministic.
 
 Invented demo data.
 """
@@ -18,27 +19,17 @@ HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
 
 import fullbridge  # noqa: E402
+import spacing_check  # noqa: E402
 from layoutcheck.writers.drill import write_drill  # noqa: E402
 from layoutcheck.writers.gerber import write_gerbers  # noqa: E402
 
 
 def check(design, rev: str) -> None:
-    """Raise ``SystemExit`` unless rev-a shows exactly the planted problems and rev-b none."""
-    groups = fullbridge.classify(fullbridge.spacing_violations(design))
-    if rev == "b":
-        if groups:
-            raise SystemExit(f"rev-b has spacing problems: {groups}")
-        return
-    if None in groups:
-        raise SystemExit(f"rev-a has unplanned spacing problems: {groups[None]}")
-    for pid, (_layer, nets, gap, _area) in fullbridge.PLANTED.items():
-        found = groups.get(pid)
-        if not found:
-            raise SystemExit(f"rev-a: planted problem {pid} ({nets}) is missing")
-        smallest = min(v.gap for v in found)
-        if abs(smallest - gap) > 0.01:
-            raise SystemExit(f"rev-a: planted problem {pid} gap is {smallest:.3f} mm, "
-                             f"documented {gap} mm")
+    """Raise ``SystemExit`` unless rev-a shows exactly the planted problems and rev-b none
+    (:func:`spacing_check.check`)."""
+    errors = spacing_check.check(design, rev)
+    if errors:
+        raise SystemExit("\n".join(errors))
 
 
 def make(rev: str, root: Path = HERE) -> list[Path]:

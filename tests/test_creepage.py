@@ -147,7 +147,7 @@ def test_two_places_two_findings():
 def test_requirement_comes_from_the_standard_and_insulation_kind():
     """Without injected rules: the required creepage is required_spacing(profile, 400 V,
     rms 400 V) for the pair's insulation kind ([[insulation]] entry, else functional) and
-    the basis is its lines joined.  Gaps are set from that requirement (half of it), so
+    the basis is its brief creepage lines.  Gaps are set from that requirement (half of it), so
     the test does not depend on the table values themselves."""
     proj = iec_project(V)
     req = required_spacing(SpacingProfile(insulation="functional"), 400, rms_v=400)
@@ -155,7 +155,7 @@ def test_requirement_comes_from_the_standard_and_insulation_kind():
     found, ctx = run(b, project=proj)
     assert len(found) == 1
     f = found[0]
-    assert f.required_mm == req.creepage_mm and f.basis == "; ".join(req.basis)
+    assert f.required_mm == req.creepage_mm and f.basis == req.brief("creepage")
     assert f.measured_mm == pytest.approx(req.creepage_mm / 2, abs=1e-9)
     assert f.extra["insulation"] == "functional"
     proj2 = iec_project(V, insulation=[{"between": "HV_*", "and": "GND",

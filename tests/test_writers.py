@@ -18,6 +18,7 @@ Geometry interpretation of the files is left to the readers' tests.
 """
 from __future__ import annotations
 
+import math
 import re
 import sys
 import tomllib
@@ -26,8 +27,11 @@ from pathlib import Path
 import pytest
 import shapely
 
+from layoutcheck.physics.iec60664 import groove_width_x_mm
+from layoutcheck.physics.requirements import SpacingProfile, required_spacing
+from layoutcheck.project import load_project
 from layoutcheck.writers.design import (Design, NonPlatedHole, Pad, Part, Slot, Track, Via,
-                                        Zone, pad_polygon)
+                                        Zone, pad_polygon, slot_polygon)
 from layoutcheck.writers.drill import drill_text, write_drill
 from layoutcheck.writers.gerber import (GerberWriter, coordinate_text, escape_field,
                                         gerber_layer_text, write_gerbers)
@@ -39,6 +43,8 @@ sys.path.insert(0, str(ROOT / "benchmarks"))
 import big_board  # noqa: E402
 import fullbridge  # noqa: E402
 import make_samples  # noqa: E402
+import spacing_check  # noqa: E402
+from surface_path import surface_path  # noqa: E402
 
 # --------------------------------------------------------------------- a small design
 
@@ -539,6 +545,16 @@ def test_design_validation():
 
 # --------------------------------------------------------------------- sample boards
 
+def _required(volts, standard="both", termination=False):
+    """The package's own requirement for the sample's environment (pollution degree 2,
+    material group IIIa, overvoltage category II, functional insulation: the project
+    file has no [[insulation]] entry), external layer."""
+    profile = SpacingProfile(standard=standard, pollution_degree=2, material_group="IIIa",
+                             overvoltage_category="II", insulation="functional")
+    return required_spacing(profile, volts, rms_v=volts, layer_outer=True,
+                            termination=termination)
+
+
 def test_sample_folders_are_up_to_date(tmp_path):
     """make_samples output is deterministic and the generated folders in the repository
     are byte-identical to a fresh run (regenerate with make_samples.py if this fails)."""
@@ -553,8 +569,9 @@ def test_sample_folders_are_up_to_date(tmp_path):
 
 def test_project_file_contract():
     """The project file has the agreed [board]/[voltages]/[environment] shape, the nets
-    that ride on a switch node are declared relative to it, and both folders hold the
-    generator's one PROJECT_TEXT."""
+    that ride on a switch node are declared relative to it, the IEC 60664-1 conditions
+    are written out (each with a comment) rather than left to defaults, and both folders
+    hold the generator's one PROJECT_TEXT."""
     for rev in ("a", "b"):
         text = (ROOT / "sample_boards" / f"fullbridge-rev-{rev}" /
                 "layoutcheck.toml").read_text(encoding="utf-8")
@@ -571,23 +588,52 @@ def test_project_file_contract():
             assert v[f"HO_{leg}"] == {"on": sw, "volts": "0..15"}
             assert v[gate] == {"on": sw, "volts": "0..15"}
         assert not any(isinstance(x, str) and x.endswith("415") for x in v.values())
-        assert t["environment"] == {"altitude_m": 0, "coating": "none"}
+        assert t["environment"] == {"altitude_m": 0, "coating": "none", "standard": "both",
+                                    "pollution_degree": 2, "material_group": "IIIa",
+                                    "overvoltage_category": "II"}
+        iec_keys = ("standard", "pollution_degree", "material_group", "overvoltage_category")
+        for key in iec_keys:
+            line = next(x for x in text.splitlines() if x.startswith(key + " "))
+            assert "#" in line, key
+        env = load_project(ROOT / "sample_boards" / f"fullbridge-rev-{rev}" /
+                           "layoutcheck.toml").environment
+        assert set(iec_keys) <= env.explicit and env.standard == "both"
 
 
 @pytest.mark.parametrize("a,b,volts", [
     ("VB_A", "SW_A", 15), ("HO_A", "VB_A", 15), ("G_Q1", "SW_A", 15), ("HO_B", "G_Q3", 15),
     ("VB_A", "+15V", 400), ("VB_A", "GND", 415), ("HO_A", "LO_A", 415),
     ("VB_A", "VB_B", 400), ("HO_A", "SW_B", 415), ("SW_A", "SW_B", 400),
-    ("SW_A", "GND", 400),
-    ("HV_BUS", "HV_RTN", 400), ("HV_BUS", "+15V", 385), ("LO_A", "GND", 15),
+    ("SW_A", "GND", 400), ("G_Q1", "HV_RTN", 415), ("G_Q1", "HV_BUS", 400),
+    ("HV_BUS", "HV_RTN", 400), ("HV_BUS", "+15V", 385), ("HV_BUS", "+5V", 395),
+    ("LO_A", "GND", 15), ("MID", "HV_BUS", 230), ("MID", "HV_RTN", 200), ("MID", "VB_A", 245),
 ])
 def test_self_check_working_voltages(a, b, volts):
     """The self-check's working voltages, worked by hand from the stage: the switch node
     swings 0-400 V and the bootstrap supply rides 15 V above it (common practice for a
     bootstrap half-bridge driver), so VB_A is 15..415 V absolute but at most 15 V from
-    SW_A, HO_A and G_Q1 (and 400 V from VB_B, 15..415 V too); logic nets are 0..15 V."""
+    SW_A, HO_A and G_Q1 (and 400 V from VB_B, 15..415 V too); logic nets are 0..15 V; MID
+    is 170..200 V."""
     assert fullbridge.working_voltage(a, b) == pytest.approx(volts)
     assert fullbridge.working_voltage(b, a) == pytest.approx(volts)
+
+
+@pytest.mark.parametrize("a,b", [("HV_BUS", "HV_RTN"), ("VB_A", "GND"), ("HV_BUS", "+5V"),
+                                 ("MID", "HV_BUS"), ("MID", "GND"), ("LO_A", "GND"),
+                                 ("+5V", "+15V")])
+def test_targets_are_the_requirement_plus_margin(a, b):
+    """The design's targets are the package's requirement function for the project's
+    conditions (the larger of IPC-2221B Table 6-1 and IEC 60664-1, conductor or
+    termination) plus the design margin; the creepage target is never below the clearance
+    one (IEC 60664-1: creepage not less than the clearance; from memory)."""
+    v = fullbridge.working_voltage(a, b)
+    reqs = [_required(v, termination=t) for t in (False, True)]
+    got_v, clr, crp = fullbridge.pair_targets(a, b)
+    assert got_v == v
+    assert clr == pytest.approx(max(r.clearance_mm for r in reqs) + fullbridge.MARGIN)
+    assert crp == pytest.approx(max(r.creepage_mm for r in reqs) + fullbridge.MARGIN)
+    assert fullbridge.target_gap(a, b) == pytest.approx(crp) and crp >= clr
+    assert 0 < fullbridge.MARGIN <= 0.5
 
 
 def test_driver_footprint_worked_by_hand():
@@ -620,16 +666,18 @@ def test_driver_footprint_worked_by_hand():
 
 def test_self_check_counts_the_driver_pins():
     """No copper is exempt: LO moved into the empty position 13, next to VS (1.27 mm
-    pitch, 0.6 mm pads: 0.67 mm apart at 400 V), must be reported (hand-worked gap)."""
+    pitch, 0.6 mm pads: 0.67 mm apart at 400 V, below the 3.0 mm IEC 60664-1 clearance),
+    must be reported as a clearance problem (hand-worked gap)."""
     d = fullbridge.build("b")
     lo = next(p for p in d.pads if p.ref == "U1" and p.pin == "5")
     vs = next(p for p in d.pads if p.ref == "U1" and p.pin == "14")
     lo.x, lo.y = round(vs.x + 1.27, 6), vs.y
-    found = [v for v in fullbridge.spacing_violations(d)
+    found = [v for v in spacing_check.spacing_violations(d)
              if v.nets == ("LO_A", "SW_A") and "U1.5 pad" in v.features
              and "U1.14 pad" in v.features]
     assert len(found) == 1
     assert found[0].gap == pytest.approx(0.67, abs=1e-4) and found[0].voltage == 400
+    assert found[0].kind == "clearance" and found[0].gap < _required(400).clearance_mm
 
 
 def test_sample_nets_match_the_scenario():
@@ -642,46 +690,89 @@ def test_sample_nets_match_the_scenario():
 
 
 @pytest.mark.parametrize("rev", ["a", "b"])
+def test_sample_copper_is_whole_and_apart(rev):
+    """Checked with shapely on the design's ideal copper: no two nets touch, and each
+    net's copper (joined by overlap on a layer and through plated pads and vias) is one
+    piece, pours included (common practice for a board meant to be built)."""
+    pieces, root = _plated_conductors(fullbridge.build(rev))
+    roots_of = {}
+    for p, r in zip(pieces, root):
+        roots_of.setdefault(p.net, set()).add(r)
+    assert {n: len(r) for n, r in roots_of.items() if len(r) > 1} == {}
+
+
+@pytest.mark.parametrize("rev", ["a", "b"])
 def test_sample_spacing(rev):
-    """Shapely distances on the sample's own copper against the design targets (above
-    IPC-2221B Table 6-1 B2: 2.5 mm at 301-500 V, 1.25 mm at 151-300 V, 0.6 mm at
-    31-150 V): rev-a shows exactly the four planted problems with their documented
-    smallest gaps (+-0.01 mm), rev-b nothing."""
-    groups = fullbridge.classify(fullbridge.spacing_violations(fullbridge.build(rev)))
+    """Shapely distances and surface paths on the sample's own copper against the design
+    targets: rev-a shows exactly the five planted problems with their documented smallest
+    gaps (+-0.01 mm) and kinds, rev-b nothing.  Each planted clearance gap is below both
+    IPC-2221B Table 6-1 (B2 and A6) and the IEC 60664-1 clearance; the planted creepage gap
+    keeps both clearances but is below the IEC 60664-1 creepage, on a straight path (all
+    requirements from the package's requirement function)."""
+    groups = spacing_check.classify(spacing_check.spacing_violations(fullbridge.build(rev)))
     if rev == "b":
         assert groups == {}
         return
-    assert set(groups) == {1, 2, 3, 4}
-    for pid, (_layer, _nets, gap, _box) in fullbridge.PLANTED.items():
-        assert abs(min(v.gap for v in groups[pid]) - gap) <= 0.01
-    # B2 says 2.5 mm at 301-500 V and A6 1.5 mm: each planted gap is below both.
-    assert all(v.gap < 1.5 for vs in groups.values() for v in vs if v.voltage > 300
-               and v.gap == min(x.gap for x in vs))
+    assert set(groups) == {1, 2, 3, 4, 5}
+    for pid, p in fullbridge.PLANTED.items():
+        worst = min(groups[pid], key=lambda v: v.gap)
+        assert abs(worst.gap - p.gap) <= 0.01 and worst.kind == p.kind, pid
+        v = fullbridge.working_voltage(*p.nets)
+        iec = _required(v, "iec60664-1")
+        ipc = max(_required(v, "ipc2221b", t).clearance_mm for t in (False, True))
+        if p.kind == "clearance":
+            assert worst.gap < min(ipc, iec.clearance_mm), pid
+        else:
+            assert max(ipc, iec.clearance_mm) <= worst.gap < iec.creepage_mm
+            assert worst.path == pytest.approx(worst.gap, abs=1e-4)
+    assert sum(p.kind == "creepage" for p in fullbridge.PLANTED.values()) == 1
+
+
+def test_self_check_sees_the_missing_slot(monkeypatch):
+    """Without its slot rev-b fails at exactly the planted creepage spot: the slot is the
+    only fix there."""
+    monkeypatch.setattr(fullbridge, "CREEPAGE_SLOT", None)
+    errors = spacing_check.check(fullbridge.build("b"), "b")
+    assert len(errors) == 1 and "('+5V', 'HV_BUS')" in errors[0] and "creepage" in errors[0]
 
 
 @pytest.mark.parametrize("rev", ["a", "b"])
 def test_review_agrees_with_the_self_check(rev):
-    """The package's own review of the written folder (IPC-2221B Table 6-1 B2/A6, values
-    from memory, smaller than the design targets) finds exactly the planted problems in
-    rev-a - one finding each, problem 3 on both layers - with the documented smallest
-    copper-to-copper gaps (+-0.01 mm), and nothing in rev-b."""
+    """The package's own review of the written folder finds exactly the planted problems
+    in rev-a and nothing in rev-b.  Clearance: one finding per planted clearance problem
+    (problem 3 on both layers) with the documented smallest copper-to-copper gap
+    (+-0.01 mm), required value from the requirement function.  Creepage: exactly one
+    finding at the planted creepage spot, on the straight 3.3 mm path, 4.0 mm required
+    (IEC 60664-1 Table F.4 via the requirement function); any other creepage finding sits
+    on a planted clearance place."""
     from layoutcheck.review import review
     r = review(ROOT / "sample_boards" / f"fullbridge-rev-{rev}")
     if rev == "b":
         assert r.findings == []
         return
-    assert all(f.rule == "clearance" and f.severity == "error" for f in r.findings)
-    seen = []
+    assert {f.rule for f in r.findings} == {"clearance", "creepage"}
+    assert all(f.severity == "error" for f in r.findings)
+    places = {"clearance": [], "creepage": []}
     for f in r.findings:
-        pid = next(pid for pid, (layer, nets, _gap, (x0, y0, x1, y1))
-                   in fullbridge.PLANTED.items()
-                   if f.layer in ((layer, "bottom") if pid == 3 else (layer,))
-                   and tuple(f.nets) == nets and x0 <= f.where[0] <= x1
-                   and y0 <= f.where[1] <= y1)
-        assert abs(f.extra["closest_mm"] - fullbridge.PLANTED[pid][2]) <= 0.01
-        seen.append((pid, f.layer))
-    assert sorted(seen) == [(1, "top"), (2, "top"), (3, "bottom"), (3, "top"),
-                            (4, "bottom")]
+        pid = spacing_check.planted_of(f.layer, f.nets, f.where)
+        assert pid is not None, f.message
+        places[f.rule].append((pid, f.layer))
+        need = {getattr(_required(f.voltage_v, termination=t), f"{f.rule}_mm")
+                for t in (False, True)}
+        assert f.required_mm in need, f.message
+        if f.rule == "clearance":
+            assert abs(f.extra["closest_mm"] - fullbridge.PLANTED[pid].gap) <= 0.01
+    assert sorted(places["clearance"]) == [(1, "top"), (2, "top"), (3, "bottom"),
+                                           (3, "top"), (4, "bottom")]
+    spot = [f for f in r.findings if f.rule == "creepage"
+            and spacing_check.planted_of(f.layer, f.nets, f.where) == 5]
+    assert len(spot) == 1
+    f = spot[0]
+    assert len(f.extra["path"]) == 2 and "around" not in f.extra
+    assert abs(f.measured_mm - fullbridge.CREEPAGE_GAP) <= 0.01
+    assert f.measured_mm == pytest.approx(f.extra["straight_mm"], abs=1e-6)
+    assert f.required_mm == _required(f.voltage_v, "iec60664-1").creepage_mm
+    assert set(places["creepage"]) - {(5, "top")} <= set(places["clearance"])
 
 
 def _pads_of(d, ref):
@@ -689,30 +780,150 @@ def _pads_of(d, ref):
 
 
 def test_commutation_loop_placement():
-    """C5 is about 40 mm from leg A (Q1/Q2) in rev-a and within 8 mm in rev-b; C6 sits
+    """C5 is about 40 mm from leg A (Q1/Q2) in rev-a and within 10 mm in rev-b; C6 sits
     by leg B in both."""
-    for rev, lo, hi in (("a", 35.0, 45.0), ("b", 0.0, 8.0)):
+    for rev, lo, hi in (("a", 35.0, 45.0), ("b", 0.0, 10.0)):
         d = fullbridge.build(rev)
         legs = shapely.union_all([_pads_of(d, "Q1"), _pads_of(d, "Q2")]).centroid
         dist = _pads_of(d, "C5").centroid.distance(legs)
         assert lo <= dist <= hi, (rev, dist)
+        legs = shapely.union_all([_pads_of(d, "Q3"), _pads_of(d, "Q4")]).centroid
+        assert _pads_of(d, "C6").centroid.distance(legs) <= 10.0
 
 
-def test_creepage_gap_and_slot_hook(monkeypatch):
-    """Both revisions keep a straight ~3.05 mm gap between the HV_BUS bus bar and the +5V
-    run; setting CREEPAGE_SLOT adds a non-plated routed slot to rev-b only."""
-    for rev in ("a", "b"):
-        d = fullbridge.build(rev)
-        bus = shapely.union_all([z for z in (p.geometry for p in d.copper()
-                                             if p.net == "HV_BUS" and p.layer == "top")])
-        plus5 = [t for t in d.tracks if t.net == "+5V"][0]
-        run = shapely.LineString(plus5.points[2:4]).buffer(plus5.width / 2, cap_style="flat")
-        assert abs(bus.distance(run) - 3.05) < 0.005
-    slot = Slot([(9.0, 44.475), (20.0, 44.475)], 1.0)
-    monkeypatch.setattr(fullbridge, "CREEPAGE_SLOT", slot)
-    assert fullbridge.build("b").slots == [slot] and fullbridge.build("a").slots == []
-    text = drill_text(fullbridge.build("b"), False)
-    assert "G00X9.000Y44.475" in text and "M15" in text
+def _spot_copper(d, net):
+    """``net``'s top copper around the planted creepage spot (mm)."""
+    window = shapely.box(3.5, 38.0, 25.0, 47.0)
+    return shapely.union_all([p.geometry for p in d.copper()
+                              if p.layer == "top" and p.net == net]).intersection(window)
+
+
+def test_creepage_spot_differs_only_by_the_slot():
+    """Both revisions keep the same copper at the creepage spot: the bus bar's lower edge
+    3.3 mm straight above the +5V run (shapely distance and symmetric difference); rev-b
+    adds the non-plated slot (1.2-1.5 mm wide, at least X of IEC 60664-1 for pollution
+    degree 2) between them, touching neither, across the straight gap; the NC drill file
+    routes it (G00 to the start, M15 tool down; drill-machine manual, shared notes s. 2)."""
+    a, b = fullbridge.build("a"), fullbridge.build("b")
+    for net in ("+5V", "HV_BUS"):
+        assert shapely.symmetric_difference(_spot_copper(a, net), _spot_copper(b, net)).area \
+            < 1e-9
+    bus, plus5 = _spot_copper(b, "HV_BUS"), _spot_copper(b, "+5V")
+    assert abs(bus.distance(plus5) - fullbridge.CREEPAGE_GAP) < 1e-6
+    slot = fullbridge.CREEPAGE_SLOT
+    assert slot in b.slots and slot not in a.slots and not slot.plated
+    x = groove_width_x_mm(2).mm
+    assert 1.2 <= slot.width <= 1.5 and slot.width >= x
+    cut = slot_polygon(slot)
+    assert cut.distance(bus) > 0.5 and cut.distance(plus5) > 0.5
+    assert shapely.shortest_line(plus5, bus).intersects(cut)
+    text = drill_text(b, False)
+    (x0, y0), (x1, y1) = slot.points
+    assert f"G00X{x0:.3f}Y{y0:.3f}" in text and f"X{x1:.3f}Y{y1:.3f}" in text
+    assert "M15" in text and "X%.3fY%.3f" % (x0, y0) not in drill_text(a, False)
+
+
+def _around_end(cap, r, corner, rc, edge_y):
+    """Hand-worked shortest path from a horizontal copper edge at ``edge_y`` above a slot
+    end cap (centre ``cap``, radius ``r``) down its outer side, round the cap and along the
+    tangent to a rounded copper corner (centre ``corner``, radius ``rc``) below the slot:
+    vertical drop + arc + (tangent length - rc).  Plane geometry, worked by hand."""
+    dx, dy = corner[0] - cap[0], corner[1] - cap[1]
+    dist = math.hypot(dx, dy)
+    tangent = math.sqrt(dist ** 2 - r ** 2)
+    # the path leaves the cap where its radius is perpendicular to the line to the corner
+    leave = math.atan2(dy, dx) + math.copysign(math.acos(r / dist), -dx)
+    start = math.pi if dx > 0 else 0.0          # the cap's outermost point
+    arc = abs((leave - start + math.pi) % (2 * math.pi) - math.pi) * r
+    return (edge_y - cap[1]) + arc + tangent - rc
+
+
+def test_creepage_slot_path_worked_by_hand():
+    """Around either end of rev-b's slot: from the bus bar edge (y = 46.0) straight down
+    to the cap's outermost point (1.65 mm), round the cap (68.15 degrees of a 0.6 mm
+    radius, 0.714 mm), then along the tangent towards the centre of the +5V run's rounded
+    corner (radius 0.4 mm): 4.012 - 0.4 = 3.612 mm; 5.975 mm in all (plane geometry, worked
+    by hand; the README's figure),
+    above the 4.0 mm creepage (+ margin).  The generator's own surface path on the design
+    copper agrees to 2 um (flattened arcs)."""
+    slot = fullbridge.CREEPAGE_SLOT
+    (x0, ys), (x1, _) = slot.points
+    track = next(t for t in fullbridge.build("b").tracks if t.net == "+5V")
+    left, right = track.points[2], track.points[3]
+    want = [_around_end((x0, ys), slot.width / 2, left, track.width / 2,
+                        fullbridge.BUS_BAR_Y),
+            _around_end((x1, ys), slot.width / 2, right, track.width / 2,
+                        fullbridge.BUS_BAR_Y)]
+    assert want == pytest.approx([5.975, 5.975], abs=5e-4)
+    d = fullbridge.build("b")
+    got, path = surface_path(_spot_copper(d, "+5V"), _spot_copper(d, "HV_BUS"),
+                             spacing_check.obstacles(d), 20.0)
+    assert got == pytest.approx(min(want), abs=0.002) and len(path) > 2
+    assert min(want) > _required(395).creepage_mm + fullbridge.MARGIN
+
+
+def test_review_follows_the_path_round_a_short_slot(tmp_path, monkeypatch):
+    """Cut short to end 0.6 mm past the +5V run (cap centre 19.6 mm, right of the run's
+    corner at 19.0), the slot leaves 1.65 + 0.342 + 1.650 = 3.642 mm round its end (the
+    tangent construction above, by hand): the review then reports that path, round the
+    slot, below the 4.0 mm creepage; the straight gap stays 3.3 mm."""
+    from layoutcheck.review import review
+    (x0, ys), _ = fullbridge.CREEPAGE_SLOT.points
+    monkeypatch.setattr(fullbridge, "CREEPAGE_SLOT", Slot([(x0, ys), (19.6, ys)], 1.2))
+    d = fullbridge.build("b")
+    write_gerbers(d, tmp_path)
+    write_drill(d, tmp_path)
+    (tmp_path / "layoutcheck.toml").write_text(fullbridge.PROJECT_TEXT, encoding="utf-8")
+    track = next(t for t in d.tracks if t.net == "+5V")
+    want = _around_end((19.6, ys), 0.6, track.points[3], track.width / 2,
+                       fullbridge.BUS_BAR_Y)
+    assert want == pytest.approx(3.642, abs=5e-4)
+    found = review(tmp_path).findings
+    assert [(f.rule, tuple(f.nets)) for f in found] == [("creepage", ("+5V", "HV_BUS"))]
+    assert found[0].measured_mm == pytest.approx(want, abs=0.002)
+    assert found[0].extra["straight_mm"] == pytest.approx(fullbridge.CREEPAGE_GAP, abs=1e-4)
+    assert found[0].extra.get("around")
+
+
+def test_leg_slots_worked_by_hand():
+    """The slot between a TO-247 gate and drain (1.2 mm wide, tool path 3.0 mm either side
+    of the pin row) on the bottom layer: from the gate pad's upper cap (radius 1.1 mm,
+    centre 0.5 mm above the row) along the tangent to the slot's top cap (radius 0.6 mm,
+    2.725 mm to the side, 2.5 mm above that centre), over the cap (103.74 degrees) and down
+    the mirror tangent to the drain pad: 2 x (3.649 - 1.1) + 1.086 = 6.185 mm (by hand;
+    plane geometry), above the
+    4.0 mm creepage; the straight pad gap is 5.45 - 2.2 = 3.25 mm, above the 3.0 mm
+    clearance."""
+    d = fullbridge.build("b")
+    pads = {p.pin: pad_polygon(p) for p in d.pads if p.ref == "Q1"}
+    ac = math.hypot(fullbridge.TO247_PITCH / 2, fullbridge.LEG_SLOT_HALF - 0.5)
+    tangent = math.sqrt(ac ** 2 - 0.6 ** 2)
+    # the tangent leaves the cap at 180 + phi - psi degrees (phi: direction of the pad's
+    # cap centre, psi = acos(r / distance)); the path turns over the top to the mirror point
+    phi = math.atan2(fullbridge.LEG_SLOT_HALF - 0.5, fullbridge.TO247_PITCH / 2)
+    turn = math.pi + 2 * phi - 2 * math.acos(0.6 / ac)
+    want = 2 * (tangent - 1.1) + turn * 0.6
+    assert want == pytest.approx(6.185, abs=5e-4)
+    got, _ = surface_path(pads["1"], pads["2"], spacing_check.obstacles(d), 20.0)
+    assert got == pytest.approx(want, abs=0.002)
+    assert pads["1"].distance(pads["2"]) == pytest.approx(3.25, abs=1e-3)
+    assert want > _required(400).creepage_mm + fullbridge.MARGIN
+    assert 3.25 >= _required(400).clearance_mm + fullbridge.MARGIN
+
+
+@pytest.mark.parametrize("wall,want", [(False, 2.0), (True, 1 + math.sqrt(5))])
+def test_surface_path_worked_by_hand(wall, want):
+    """Independent geometry: two 2 x 1 mm copper blocks 2 mm apart; a 1 mm wide wall
+    from x = -10 to 3 between them makes the path go round its end: corner (2, 1) to wall
+    corner (3, 1.5), up the wall's end (1 mm), to corner (2, 3): 1 + 2 sqrt(1.25) =
+    1 + sqrt(5) mm (Pythagoras, by hand); without the wall, 2 mm straight."""
+    a, b = shapely.box(0, 0, 2, 1), shapely.box(0, 3, 2, 4)
+    walls = [shapely.box(-10, 1.5, 3, 2.5)] if wall else []
+    got, path = surface_path(a, b, walls, 10.0)
+    assert got == pytest.approx(want, abs=1e-9)
+    if walls:
+        assert surface_path(a, b, walls, 3.0)[0] >= 3.0     # not followed past the limit
+        assert [tuple(p) for p in path] == [(2.0, 1.0), (3.0, 1.5), (3.0, 2.5), (2.0, 3.0)]
 
 
 # --------------------------------------------------------------------- benchmark generator

@@ -148,6 +148,34 @@ def spacing_cmd(
     typer.echo(render(profile, req, inputs, defaults, list(given)), nl=False)
 
 
+@app.command("loop")
+def loop_cmd(
+    path: Path = typer.Argument(..., help="Folder or zip of fab files, a fab file, or a "
+                                          "project file (layoutcheck.toml)."),
+    through: str = typer.Option(..., "--through", help="The loop as pads REF.PIN in order, "
+                                "comma-separated, e.g. C3.1,Q1.2,Q1.3,Q2.2,Q2.3,C3.2; the "
+                                "last pad joins the first."),
+    project: Path | None = typer.Option(None, "--project", help="Project file to use."),
+    format: Format = typer.Option(Format.text, "--format", help="Output format."),
+    out: Path | None = typer.Option(None, "--out", help="Write the output to this file."),
+):
+    """Inductance, overshoot and ringing of one current loop given as a pad sequence;
+    exit 1 if its peak exceeds the derated switch rating."""
+    from .loops import evaluate_through
+    from .netgraph import build_netgraph
+    from .readers import read_board
+    from .reports import loop_report
+    from .review import resolve_inputs
+
+    fab_path, proj = resolve_inputs(path, project)
+    board = read_board(fab_path, proj, progress=_progress())
+    graph = build_netgraph(board)
+    result = evaluate_through(board, graph, proj, through)
+    render = loop_report.render_json if format is Format.json else loop_report.render_text
+    write_output(render(result), out)
+    raise typer.Exit(1 if result.errors else 0)
+
+
 def main(argv: list[str] | None = None) -> int:
     """Run the command line with ``argv`` (default: sys.argv[1:]); return the exit code."""
     cmd = typer.main.get_command(app)

@@ -25,6 +25,25 @@ Further keys read here: ``[board] netlist``, ``[board] layers`` (file name -> la
 files that do not say what they are), ``[board] plated`` / ``non_plated`` (drill file names),
 ``[board] size_mm`` (used when there is no profile layer), ``[stackup] thickness_mm``,
 ``copper_um``; ``[rules] ignore`` (rule ids not to run).
+
+Switching and parts (power-loop rule)::
+
+    [switching]
+    di_dt_a_per_ns = 1.0      # or current_a + switch_time_ns (A, ns)
+    derating = 0.8            # peak voltage / switch rating allowed (fraction)
+    warn_nh = 20              # warn above this loop inductance (nH)
+    all_loops = false         # report every capacitor's loop, not only each leg's smallest
+    [parts.Q1]
+    kind = "mosfet"           # mosfet | igbt | capacitor | resistor | diode | driver | other
+    package = "TO-247"        # looked up in rules/packages.toml
+    pins = { G = "1", D = "2", S = "3" }   # role -> pad (IGBT: G, C, E; capacitor: +, -)
+    vds_max_v = 600           # switch voltage rating, V
+    coss_pf = 110             # output capacitance at the bus voltage, pF
+    internal_nh = 0           # overrides the package table, nH
+    [legs.A]                  # name the legs instead of finding them
+    capacitor = "C3"          # optional: every capacitor across the bus when left out
+    high = "Q1"
+    low = "Q2"
 """
 from __future__ import annotations
 
@@ -48,6 +67,17 @@ STANDARDS = ("ipc2221b", "iec60664-1", "both")
 MATERIAL_GROUPS = ("I", "II", "IIIa", "IIIb")
 OVERVOLTAGE_CATEGORIES = ("I", "II", "III", "IV")
 INSULATION_KINDS = ("functional", "basic", "supplementary", "reinforced")
+PART_KINDS = ("mosfet", "igbt", "capacitor", "resistor", "diode", "driver", "other")
+#: Pin roles a ``[parts.<ref>] pins`` table may name, per kind (``None``: kind not given).
+PIN_ROLES = {"mosfet": ("G", "D", "S"), "igbt": ("G", "C", "E"), "capacitor": ("+", "-"),
+             None: ("G", "D", "S", "C", "E", "+", "-")}
+#: Default derating of a switch's voltage rating: the peak may reach 80 % of it
+#: (power-layout notes VD-1 / PL-1 [N], common practice).
+DEFAULT_DERATING = 0.8
+#: Default loop inductance above which the power-loop rule warns (nH).  Common practice:
+#: the notes (PL-1 [A, M]) put TO-220/247 loops on two-layer boards at 20-70 nH and
+#: D2PAK loops at 5-15 nH, so 20 nH marks where a through-hole layout starts to cost.
+DEFAULT_WARN_NH = 20.0
 
 
 @dataclass
@@ -100,6 +130,63 @@ class Earth:
 
 
 @dataclass
+class Switching:
+    """``[switching]``: how fast the current commutates and how much margin is wanted.
+
+    di_dt_a_per_ns: A/ns, or ``current_a`` (A) over ``switch_time_ns`` (ns).
+    derating: fraction of the switch rating the peak may reach.  warn_nh: nH.
+    ``explicit`` holds the keys the file actually gave.
+    """
+
+    di_dt_a_per_ns: float | None = None
+    current_a: float | None = None
+    switch_time_ns: float | None = None
+    derating: float = DEFAULT_DERATING
+    warn_nh: float = DEFAULT_WARN_NH
+    all_loops: bool = False
+    explicit: set[str] = field(default_factory=set)
+
+    def di_dt(self) -> float | None:
+        """The commutation di/dt in A/ns the file gives (directly or as current / time),
+        or ``None`` when it gives none."""
+        if self.di_dt_a_per_ns is not None:
+            return self.di_dt_a_per_ns
+        if self.current_a is not None and self.switch_time_ns is not None:
+            return self.current_a / self.switch_time_ns
+        return None
+
+
+@dataclass
+class PartSpec:
+    """``[parts.<ref>]``: what the files may not say about one part.
+
+    kind: one of :data:`PART_KINDS`.  pins: role (``G``/``D``/``S``, ``G``/``C``/``E``,
+    ``+``/``-``) -> pad number.  vds_max_v: V.  coss_pf: pF.  internal_nh: nH.
+    line: the line of the table in the project file, for messages.
+    """
+
+    ref: str
+    kind: str | None = None
+    package: str | None = None
+    pins: dict[str, str] = field(default_factory=dict)
+    vds_max_v: float | None = None
+    coss_pf: float | None = None
+    internal_nh: float | None = None
+    line: int | None = None
+
+
+@dataclass
+class LegSpec:
+    """``[legs.<name>]``: a half-bridge leg named in the project file (part references)."""
+
+    name: str
+    high: str
+    low: str
+    capacitor: str | None = None
+    line: int | None = None
+
+
+@dataclass
 class VoltageRule:
     pattern: str
     voltage: VoltageRange          # absolute range, or the offset when ``on`` is set
@@ -131,6 +218,9 @@ class Project:
     ignore_rules: list[str] = field(default_factory=list)
     insulation: list[InsulationRule] = field(default_factory=list)
     earth: Earth = field(default_factory=Earth)
+    switching: Switching = field(default_factory=Switching)
+    parts: dict[str, PartSpec] = field(default_factory=dict)
+    legs: dict[str, LegSpec] = field(default_factory=dict)
     data: dict[str, Any] = field(default_factory=dict)
     assumptions: list[Assumption] = field(default_factory=list)
 
@@ -412,7 +502,169 @@ def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
         if not isinstance(v, list) or not all(isinstance(x, str) for x in v):
             fail("[rules] ignore must be a list of rule ids", "ignore")
         proj.ignore_rules = list(v)
+    _switching_keys(data, proj, where, text)
     return proj
+
+
+# -- [switching], [parts.<ref>], [legs.<name>] ----------------------------------------------
+
+_SWITCHING_KEYS = ("di_dt_a_per_ns", "current_a", "switch_time_ns", "derating", "warn_nh",
+                   "all_loops")
+_PART_KEYS = ("kind", "package", "pins", "vds_max_v", "coss_pf", "internal_nh")
+_LEG_KEYS = ("capacitor", "high", "low")
+
+
+def table_key_line(text: str, table: tuple[str, ...], key: str | None = None) -> int | None:
+    """1-based line of ``key`` inside the TOML table ``table`` (e.g. ``("parts", "Q1")``),
+    or of the table's header when ``key`` is ``None`` or not found there.
+
+    Looks for a ``[a.b]`` header (names bare or quoted), then for ``key =`` before the next
+    header; falls back to the first line that mentions the table's last name.
+    """
+    if not text:
+        return None
+    lines = text.splitlines()
+    name = r"\s*\.\s*".join(r'(?:"%s"|\'%s\'|%s)' % (re.escape(t), re.escape(t), re.escape(t))
+                            for t in table)
+    head = re.compile(r"^\s*\[\s*" + name + r"\s*\]")
+    start = next((n for n, ln in enumerate(lines) if head.match(ln)), None)
+    if start is None:
+        last = table[-1]
+        for n, ln in enumerate(lines):
+            if re.search(r"(^|[\s.\"'])" + re.escape(last) + r"([\s.\"'=]|$)", ln):
+                return n + 1
+        return None
+    if key is None:
+        return start + 1
+    kre = re.compile(r'^\s*(?:"%s"|%s)\s*=' % (re.escape(key), re.escape(key)))
+    for n in range(start + 1, len(lines)):
+        if re.match(r"^\s*\[", lines[n]):
+            break
+        if kre.match(lines[n]):
+            return n + 1
+    return start + 1
+
+
+def _number(v, lo=None, lo_open=True, hi=None) -> bool:
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or v != v:
+        return False
+    if lo is not None and (v <= lo if lo_open else v < lo):
+        return False
+    return hi is None or v <= hi
+
+
+def _switching_keys(data: dict, proj: Project, where: str, text: str) -> None:
+    """Parse and check ``[switching]``, ``[parts.<ref>]`` and ``[legs.<name>]``."""
+
+    def fail(msg, table, key=None):
+        raise ProjectFileError(msg, file=where, line=table_key_line(text, table, key))
+
+    sw = data.get("switching", {})
+    if not isinstance(sw, dict):
+        fail("[switching] must be a table", ("switching",))
+    extra = sorted(set(sw) - set(_SWITCHING_KEYS))
+    if extra:
+        fail(f"[switching] unknown key(s) {', '.join(extra)}; expected "
+             f"{', '.join(_SWITCHING_KEYS)}", ("switching",), extra[0])
+    s = proj.switching
+    for key, lo, unit in (("di_dt_a_per_ns", 0, "A/ns"), ("current_a", 0, "A"),
+                          ("switch_time_ns", 0, "ns"), ("warn_nh", 0, "nH")):
+        if key in sw:
+            if not _number(sw[key], lo):
+                fail(f"[switching] {key} must be a number > 0 ({unit}); got {sw[key]!r}",
+                     ("switching",), key)
+            setattr(s, key, float(sw[key]))
+            s.explicit.add(key)
+    if "derating" in sw:
+        if not _number(sw["derating"], 0, hi=1):
+            fail("[switching] derating must be a fraction of the rating, 0 < derating <= 1 "
+                 f"(0.8 for 80 %); got {sw['derating']!r}", ("switching",), "derating")
+        s.derating = float(sw["derating"])
+        s.explicit.add("derating")
+    if "all_loops" in sw:
+        if not isinstance(sw["all_loops"], bool):
+            fail("[switching] all_loops must be true or false", ("switching",), "all_loops")
+        s.all_loops = sw["all_loops"]
+        s.explicit.add("all_loops")
+    if "di_dt_a_per_ns" in sw and ({"current_a", "switch_time_ns"} & set(sw)):
+        fail("[switching] give di_dt_a_per_ns, or current_a with switch_time_ns, not both",
+             ("switching",), "current_a")
+    if ("current_a" in sw) != ("switch_time_ns" in sw):
+        missing = "switch_time_ns" if "current_a" in sw else "current_a"
+        fail(f"[switching] current_a and switch_time_ns go together; {missing} is missing",
+             ("switching",), "current_a" if "current_a" in sw else "switch_time_ns")
+
+    parts = data.get("parts", {})
+    if not isinstance(parts, dict) or not all(isinstance(v, dict) for v in parts.values()):
+        fail("[parts] must hold one table per part reference, e.g. [parts.Q1]", ("parts",))
+    for ref, entry in parts.items():
+        tb = ("parts", ref)
+        extra = sorted(set(entry) - set(_PART_KEYS))
+        if extra:
+            fail(f"[parts.{ref}] unknown key(s) {', '.join(extra)}; expected "
+                 f"{', '.join(_PART_KEYS)}", tb, extra[0])
+        spec = PartSpec(ref, line=table_key_line(text, tb))
+        if "kind" in entry:
+            if entry["kind"] not in PART_KINDS:
+                fail(f"[parts.{ref}] kind must be one of {', '.join(PART_KINDS)}; got "
+                     f"{entry['kind']!r}", tb, "kind")
+            spec.kind = entry["kind"]
+        if "package" in entry:
+            if not isinstance(entry["package"], str) or not entry["package"].strip():
+                fail(f"[parts.{ref}] package must be a package name such as \"TO-247\"",
+                     tb, "package")
+            spec.package = entry["package"]
+        if "pins" in entry:
+            pins = entry["pins"]
+            roles = PIN_ROLES.get(spec.kind, ())
+            if not isinstance(pins, dict) or not pins:
+                fail(f"[parts.{ref}] pins must map roles to pads, e.g. "
+                     '{ G = "1", D = "2", S = "3" }', tb, "pins")
+            for role, pad in pins.items():
+                if role not in roles:
+                    allowed = ", ".join(roles) if roles else "none (pins are not used for " \
+                        f"kind {spec.kind!r})"
+                    fail(f"[parts.{ref}] pins: role {role!r} is not one of {allowed}", tb,
+                         "pins")
+                if isinstance(pad, bool) or not isinstance(pad, (str, int)) or \
+                        not str(pad).strip():
+                    fail(f"[parts.{ref}] pins: role {role} must name a pad (a string such "
+                         f'as "2"); got {pad!r}', tb, "pins")
+            pads = [str(p) for p in pins.values()]
+            if len(set(pads)) != len(pads):
+                fail(f"[parts.{ref}] pins: one pad is given two roles", tb, "pins")
+            spec.pins = {r: str(p) for r, p in pins.items()}
+        for key, lo_open, unit in (("vds_max_v", True, "V"), ("coss_pf", True, "pF"),
+                                   ("internal_nh", False, "nH")):
+            if key in entry:
+                if not _number(entry[key], 0, lo_open=lo_open):
+                    rel = "> 0" if lo_open else ">= 0"
+                    fail(f"[parts.{ref}] {key} must be a number {rel} ({unit}); got "
+                         f"{entry[key]!r}", tb, key)
+                setattr(spec, key, float(entry[key]))
+        proj.parts[ref] = spec
+
+    legs = data.get("legs", {})
+    if not isinstance(legs, dict) or not all(isinstance(v, dict) for v in legs.values()):
+        fail("[legs] must hold one table per leg, e.g. [legs.A] with high, low and "
+             "optionally capacitor", ("legs",))
+    for name, entry in legs.items():
+        tb = ("legs", name)
+        extra = sorted(set(entry) - set(_LEG_KEYS))
+        if extra:
+            fail(f"[legs.{name}] unknown key(s) {', '.join(extra)}; expected "
+                 f"{', '.join(_LEG_KEYS)}", tb, extra[0])
+        for key in ("high", "low"):
+            if key not in entry:
+                fail(f"[legs.{name}] needs {key} = \"<part reference>\"", tb)
+        for key in _LEG_KEYS:
+            if key in entry and (not isinstance(entry[key], str) or not entry[key].strip()):
+                fail(f"[legs.{name}] {key} must be a part reference (a string); got "
+                     f"{entry[key]!r}", tb, key)
+        if entry["high"] == entry["low"]:
+            fail(f"[legs.{name}] high and low are the same part {entry['high']!r}", tb, "low")
+        proj.legs[name] = LegSpec(name, entry["high"], entry["low"], entry.get("capacitor"),
+                                  table_key_line(text, tb))
 
 
 def _more_environment(env: dict, e: Environment, fail) -> None:

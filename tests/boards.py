@@ -253,3 +253,101 @@ def around_rect_slot_end(pad_corner, slot_half_length, slot_half_width, x_mm):
     c = (slot_half_length - r, slot_half_width - r)
     t, arc = corner_path(pad_corner, c, r, 0.0)
     return 2 * (t + arc) + (2 * slot_half_width - 2 * r)
+
+
+# -- parts and half-bridge legs (power-loop rule; appended) ---------------------------------
+
+def part_pad(ref: str, pin: str, x: float, y: float, net: str | None, *, size: float = 2.0,
+             layer: str = "top", function: str = "SMDPad"):
+    """A square pad ``size`` mm wide of part ``ref``, pad ``pin``, centred on (x, y) mm."""
+    h = size / 2.0
+    return cu(rect(x - h, y - h, x + h, y + h), layer, net, component=ref, pin=pin,
+              function=function)
+
+
+def segment_track(p, q, width: float, net: str, layer: str = "top"):
+    """A straight flat-ended track of ``width`` mm from point ``p`` to ``q`` (mm)."""
+    return cu(LineString([p, q]).buffer(width / 2.0, cap_style="flat"), layer, net)
+
+
+def add_components(board: Board, *, packages: dict | None = None, names: dict | None = None,
+                   properties: dict | None = None) -> Board:
+    """Fill ``board.components`` from its pads: one part per reference, each pin at its
+    pad's centroid (mm) with the pad's net and layer.  ``packages``: ref -> package name;
+    ``names``: (ref, pin) -> pin name; ``properties``: ref -> dict."""
+    from layoutcheck.model import Component, Pin
+    packages, names, properties = packages or {}, names or {}, properties or {}
+    for s in board.shapes:
+        if s.component is None or s.pin is None:
+            continue
+        comp = board.components.setdefault(s.component, Component(s.component))
+        comp.package = packages.get(s.component)
+        comp.properties = dict(properties.get(s.component, {}))
+        c = s.geometry.centroid
+        comp.pins[s.pin] = Pin(s.pin, names.get((s.component, s.pin)), s.net, (c.x, c.y),
+                               s.layer)
+    return board
+
+
+def half_bridge(width: float = 30.0, height: float = 20.0, *, track_w: float = 2.0,
+                capacitor: bool = True, names: dict | None = None,
+                packages: dict | None = None, q_pins=("1", "2", "3"),
+                properties: dict | None = None) -> Board:
+    """One half-bridge leg drawn as a ``width`` x ``height`` mm rectangle on the top layer.
+
+    Left edge: capacitor C3 with pad 1 (HV_BUS) at (0, height) and pad 2 (HV_RTN) at (0, 0).
+    Right edge: high switch Q1 with its drain pad at (width, height) and source pad 6 mm
+    below; low switch Q2 with its drain pad at (width, 6) and source pad at (width, 0);
+    gate pads 5 mm to the right of each drain/source pair.  ``q_pins`` gives the pad
+    numbers of gate, drain and source (default the common 1 G, 2 D, 3 S).  Tracks
+    ``track_w`` wide along the centre lines: HV_BUS along the top edge, SW_A between Q1's
+    source and Q2's drain, HV_RTN along the bottom edge.  Every pad is a 2 mm square.
+    By hand: the loop C3.1 -> Q1 D -> Q1 S -> Q2 D -> Q2 S -> C3.2 runs round the
+    rectangle, enclosing ``width * height`` mm^2 with a perimeter of
+    ``2 * (width + height)`` mm.
+    """
+    W, H = width, height
+    g, d, s = q_pins
+    shapes = [
+        part_pad("Q1", d, W, H, "HV_BUS"), part_pad("Q1", s, W, H - 6, "SW_A"),
+        part_pad("Q1", g, W + 5, H - 3, "G_Q1"),
+        part_pad("Q2", d, W, 6, "SW_A"), part_pad("Q2", s, W, 0, "HV_RTN"),
+        part_pad("Q2", g, W + 5, 3, "G_Q2"),
+        segment_track((0, H), (W, H), track_w, "HV_BUS"),
+        segment_track((W, H - 6), (W, 6), track_w, "SW_A"),
+        segment_track((W, 0), (0, 0), track_w, "HV_RTN"),
+    ]
+    if capacitor:
+        shapes += [part_pad("C3", "1", 0, H, "HV_BUS"), part_pad("C3", "2", 0, 0, "HV_RTN")]
+    board = make_board(shapes, name="half-bridge")
+    return add_components(board, packages=packages, names=names, properties=properties)
+
+
+class StraightPaths:
+    """A stand-in current-path provider: the copper between two pads is one straight round
+    conductor of diameter ``diameter`` mm from pad centre to pad centre, on the start's
+    layer (top when not given).  ``copper_z``: top copper's mid-plane at 1.5825 mm, bottom
+    at 0.0175 mm (a 1.6 mm board with 35 um copper).  Records its calls."""
+
+    def __init__(self, diameter: float = 0.8, shape: str = "round"):
+        self.diameter = diameter
+        self.shape = shape
+        self.calls: list = []
+
+    def copper_z(self, board):
+        return {"top": 1.6 - 0.0175, "bottom": 0.0175}
+
+    def current_path(self, board, graph, net, start, end):
+        from types import SimpleNamespace
+
+        from layoutcheck.physics.inductance import Segment
+        self.calls.append((net, start, end))
+        layer = start[2] or end[2] or "top"
+        z = self.copper_z(board)[layer]
+        a, b = (start[0], start[1], z), (end[0], end[1], z)
+        piece = SimpleNamespace(start=a, end=b, layer=layer, width=self.diameter,
+                                thickness=self.diameter, kind="trace")
+        seg = Segment(a, b, self.diameter, self.diameter, self.shape)
+        return SimpleNamespace(net=net, pieces=[piece], length_mm=math.dist(a, b),
+                               segments=lambda: [seg],
+                               points=lambda: [(a[0], a[1], layer), (b[0], b[1], layer)])

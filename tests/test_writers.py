@@ -747,13 +747,14 @@ def test_review_agrees_with_the_self_check(rev):
     on a planted clearance place."""
     from layoutcheck.review import review
     r = review(ROOT / "sample_boards" / f"fullbridge-rev-{rev}")
+    spacing = [f for f in r.findings if f.rule in ("clearance", "creepage")]
     if rev == "b":
-        assert r.findings == []
+        assert spacing == []
         return
-    assert {f.rule for f in r.findings} == {"clearance", "creepage"}
-    assert all(f.severity == "error" for f in r.findings)
+    assert {f.rule for f in spacing} == {"clearance", "creepage"}
+    assert all(f.severity == "error" for f in spacing)
     places = {"clearance": [], "creepage": []}
-    for f in r.findings:
+    for f in spacing:
         pid = spacing_check.planted_of(f.layer, f.nets, f.where)
         assert pid is not None, f.message
         places[f.rule].append((pid, f.layer))
@@ -764,7 +765,7 @@ def test_review_agrees_with_the_self_check(rev):
             assert abs(f.extra["closest_mm"] - fullbridge.PLANTED[pid].gap) <= 0.01
     assert sorted(places["clearance"]) == [(1, "top"), (2, "top"), (3, "bottom"),
                                            (3, "top"), (4, "bottom")]
-    spot = [f for f in r.findings if f.rule == "creepage"
+    spot = [f for f in spacing if f.rule == "creepage"
             and spacing_check.planted_of(f.layer, f.nets, f.where) == 5]
     assert len(spot) == 1
     f = spot[0]
@@ -878,7 +879,7 @@ def test_review_follows_the_path_round_a_short_slot(tmp_path, monkeypatch):
     want = _around_end((19.6, ys), 0.6, track.points[3], track.width / 2,
                        fullbridge.BUS_BAR_Y)
     assert want == pytest.approx(3.642, abs=5e-4)
-    found = review(tmp_path).findings
+    found = [f for f in review(tmp_path).findings if f.rule != "power-loop"]
     assert [(f.rule, tuple(f.nets)) for f in found] == [("creepage", ("+5V", "HV_BUS"))]
     assert found[0].measured_mm == pytest.approx(want, abs=0.002)
     assert found[0].extra["straight_mm"] == pytest.approx(fullbridge.CREEPAGE_GAP, abs=1e-4)
@@ -1007,13 +1008,14 @@ def test_big_board_review_finds_only_the_deliberate_places(tmp_path):
     from layoutcheck.review import review
 
     r = review(big_board.make_big_board(tmp_path, 3000, seed=1))
-    assert sorted({f.rule for f in r.findings}) == ["clearance"]
-    assert len(r.findings) == big_board.DELIBERATE_VIOLATIONS == 16
+    found = [f for f in r.findings if f.rule != "power-loop"]
+    assert sorted({f.rule for f in found}) == ["clearance"]
+    assert len(found) == big_board.DELIBERATE_VIOLATIONS == 16
     got = sorted((round(f.required_mm, 2), f.layer, tuple(sorted(set(f.nets) & {
-        "GND", "GH_A", "HV_BUS", "HV_RTN"}))) for f in r.findings)
+        "GND", "GH_A", "HV_BUS", "HV_RTN"}))) for f in found)
     assert got == sorted([(0.13, "top", ("GND",))] * 8 + [(0.1, "top", ("GND",))] * 6 +
                          [(2.5, "top", ("GH_A", "HV_BUS")),
                           (1.5, "bottom", ("HV_BUS", "HV_RTN"))])
     want = {0.13: 0.08, 0.1: 0.07, 2.5: 2.4, 1.5: 1.2}
-    for f in r.findings:
+    for f in found:
         assert -1e-6 <= want[round(f.required_mm, 2)] - f.measured_mm <= 0.005

@@ -1,5 +1,8 @@
 """JSON report: one object, schema ``layoutcheck-report/1`` (extend, never break).
 
+``loops`` lists the commutation loops the power-loop rule evaluated (the data it leaves in
+``Finding.extra["loop"]``; the finding itself then shows the loop's name under ``loop``).
+
 Lengths in millimetres, voltages in volts; floats rounded to 0.1 um / 1 mV so that the same
 input gives the same bytes.
 """
@@ -53,6 +56,12 @@ def auto_named_nets(review) -> list[dict]:
     return out
 
 
+def loop_entries(review) -> list[dict]:
+    """The loop data the power-loop rule left on its findings, in findings order."""
+    return [f.extra["loop"] for f in review.findings
+            if f.rule == "power-loop" and isinstance(f.extra.get("loop"), dict)]
+
+
 def report_dict(review) -> dict:
     """The report as plain data (see the module docstring for the schema)."""
     b = review.board
@@ -66,7 +75,7 @@ def report_dict(review) -> dict:
             "to": _pt(f.to), "message": f.message,
         }
         for k, v in f.extra.items():
-            d[k] = _clean(v)
+            d[k] = _clean(v) if k != "loop" else v.get("name")
         findings.append(d)
     summary = {"errors": sum(f.severity == "error" for f in review.findings),
                "warnings": sum(f.severity == "warning" for f in review.findings),
@@ -85,6 +94,7 @@ def report_dict(review) -> dict:
         },
         "assumptions": [{"topic": a.topic, "text": a.text} for a in review.assumptions],
         "findings": findings,
+        "loops": [_clean(e) for e in loop_entries(review)],
         "summary": summary,
         "rules_run": list(review.rules_run),
         "caution": CAUTION,

@@ -8,7 +8,8 @@ from collections import defaultdict
 
 from ..findings import SEVERITY_RANK
 from .caution import CAUTION
-from .json_report import auto_named_nets
+from .json_report import auto_named_nets, loop_entries
+from .loop_report import loop_lines
 
 WIDTH = 92
 _LABEL = {"error": "ERROR", "warning": "WARN ", "info": "info "}
@@ -86,6 +87,12 @@ def render(review) -> str:
                 lines.extend(_wrap(f"surface path: {pts}{more}", "         "))
             if f.basis:
                 lines.extend(_wrap("basis: " + f.basis, "         "))
+        lines.append("")
+
+    loops = loop_entries(review)
+    if loops:
+        lines.append(f"Power loops ({len(loops)})")
+        lines.extend(loop_lines(loops))
         lines.append("")
 
     named = auto_named_nets(review)

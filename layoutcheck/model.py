@@ -84,6 +84,7 @@ class CopperShape:
     pin:       pin (pad) number or name from ``.P``, if any.
     function:  first field of ``.AperFunction`` (``"SMDPad"``, ``"Conductor"``, ...), if any.
     kind:      how it was made: ``"flash"``, ``"draw"``, ``"arc"``, ``"region"``, ``"plane"``.
+    pin_name:  the pin's function name when the file gives one (third field of ``.P``).
     """
 
     geometry: Polygon
@@ -94,6 +95,7 @@ class CopperShape:
     function: str | None = None
     kind: str = "region"
     source: SourceRef | None = None
+    pin_name: str | None = None
 
     @property
     def is_termination(self) -> bool:

@@ -290,15 +290,16 @@ def _copper_shapes(p: _Parsed, layer: str, outline: Polygon | None) -> list[Copp
             net = fields[0] if fields else ""
             if net == "N/C":
                 net = ""
-        ref = pin = None
+        ref = pin = pin_name = None
         if ".P" in a and a[".P"]:
             ref = a[".P"][0].strip()
             pin = a[".P"][1].strip() if len(a[".P"]) > 1 else None
+            pin_name = a[".P"][2].strip() or None if len(a[".P"]) > 2 else None
         elif ".C" in a and a[".C"]:
             ref = a[".C"][0].strip()
         func = _first(a, ".AperFunction")
         out.append(CopperShape(poly, layer, net, ref, pin, func, obj.kind,
-                               SourceRef(p.file.name, obj.line)))
+                               SourceRef(p.file.name, obj.line), pin_name))
     return out
 
 
@@ -310,7 +311,7 @@ def _components(shapes: list[CopperShape]) -> dict[str, Component]:
         c = comps.setdefault(s.component, Component(s.component))
         if s.pin is not None and s.pin not in c.pins:
             pt = s.geometry.centroid
-            c.pins[s.pin] = Pin(s.pin, None, s.net or None, (pt.x, pt.y), s.layer)
+            c.pins[s.pin] = Pin(s.pin, s.pin_name, s.net or None, (pt.x, pt.y), s.layer)
     return dict(sorted(comps.items()))
 
 

@@ -3,17 +3,21 @@
 Invented demo data: no real product, part number or brand.  Two revisions of one 2-layer,
 1.6 mm, 35 um board of 120 x 90 mm (origin at the lower-left corner, y up, millimetres):
 
-* ``build("a")`` - rev-a, with four planted clearance problems and one planted creepage
-  problem (see PLANTED below and README.md) and film capacitor C5 about 40 mm away from
-  leg A (a large commutation loop);
+* ``build("a")`` - rev-a, with four planted clearance problems, one planted creepage
+  problem and one planted commutation-loop problem (see PLANTED below and README.md): the
+  film capacitors C5 and C6 sit in the upper-left corner, about 40 mm from leg A, and the
+  bus return HV_RTN is routed apart from the HV_BUS strip (:data:`RETURN_TRACKS`);
 * ``build("b")`` - rev-b, every problem fixed (the creepage one with a routed slot,
-  :data:`CREEPAGE_SLOT`) and C5 beside leg A.
+  :data:`CREEPAGE_SLOT`), C5 beside leg A, C6 beside leg B, a bottom-side chip capacitor
+  (C10, C11) straight between each leg's high-side drain and low-side source
+  (:data:`FAST_CAPS`) and HV_RTN poured under the whole power area.
 
 Circuit (nets in capitals):
   J1 (bus in): 1 HV_BUS, 2 HV_RTN.  J2 (bridge out): 1 OUT_A = SW_A, 2 OUT_B = SW_B.
   J3 (logic, 2.54 mm): 1 +15V, 2 +5V, 3 IN_A, 4 IN_B, 5 GND.
   C1 (HV_BUS-MID) and C2 (MID-HV_RTN): series bus electrolytics; R1, R2 balancing/bleed.
-  C5 / C6: film capacitors HV_BUS-HV_RTN for leg A / leg B.
+  C5 / C6: film capacitors HV_BUS-HV_RTN for leg A / leg B; C10 / C11 (rev-b only):
+  ceramic chip capacitors HV_BUS-HV_RTN closing each leg's fast loop.
   Q1..Q4 (TO-247 style, 1 G, 2 D, 3 S): Q1 high A, Q2 low A, Q3 high B, Q4 low B.
   U1 / U2: bootstrap half-bridge drivers in a 16-position wide-body small-outline package
   with 8 pins fitted (positions 6-13 empty): 1 VCC, 2 HIN, 3 LIN, 4 COM, 5 LO, 14 VS,
@@ -27,10 +31,11 @@ Circuit (nets in capitals):
   leg A), so a netlist keeps the two names apart and the single tie point is explicit.
 
 Drawing conventions: power nets are top-layer pours (HV_BUS) and a bottom-layer pour
-(HV_RTN) computed here with shapely as "area minus other copper grown by the spacing";
-logic rails run on the bottom layer; the switch nodes leave the legs through vias and run
-to J2 on the bottom layer.  Non-plated routed slots between the MOSFET legs lengthen the
-surface path between neighbouring pins (both revisions).
+(HV_RTN; in rev-a only in the upper-left corner, the rest as tracks) computed here with
+shapely as "area minus other copper grown by the spacing"; logic rails run on the bottom
+layer; the switch nodes leave the legs through vias and run to J2 on the bottom layer.
+Non-plated routed slots between the MOSFET legs lengthen the surface path between
+neighbouring pins (both revisions).
 
 Voltage model and spacing: the project file text :data:`PROJECT_TEXT` (written beside the
 fab files as ``layoutcheck.toml``) is the one source of the node voltages and of the
@@ -98,6 +103,59 @@ pollution_degree = 2         # IEC 60664-1: only non-conductive pollution, now a
                              # conductive for a while from condensation
 material_group = "IIIa"      # board laminate with a CTI of 175 V up to 400 V
 overvoltage_category = "II"  # IEC 60664-1 Table F.1: equipment fed from the installation
+
+[switching]
+# For the power-loop rule: the overshoot of each leg's commutation loop is L di/dt.
+current_a = 20          # load current commutated at each switching edge, A
+switch_time_ns = 10     # its rise/fall time, ns: 20 A in 10 ns = 2 A/ns
+derating = 0.8          # the peak may reach 80 % of the switch rating
+warn_nh = 40            # warn above this loop inductance, nH
+
+[legs.A]
+high = "Q1"
+low = "Q2"
+
+[legs.B]
+high = "Q3"
+low = "Q4"
+
+# The parts of the commutation loops (invented values).  The package names are looked up
+# in the package table for the parts' internal inductance.
+[parts.Q1]
+package = "TO-247"      # 650 V N-channel MOSFET
+vds_max_v = 650         # drain-source rating, V
+coss_pf = 120           # output capacitance at 400 V, pF
+
+[parts.Q2]
+package = "TO-247"
+vds_max_v = 650
+coss_pf = 120
+
+[parts.Q3]
+package = "TO-247"
+vds_max_v = 650
+coss_pf = 120
+
+[parts.Q4]
+package = "TO-247"
+vds_max_v = 650
+coss_pf = 120
+
+[parts.C5]
+kind = "capacitor"
+package = "BOX-P7.5"    # 1 uF 630 V film, radial leads on a 7.5 mm pitch
+
+[parts.C6]
+kind = "capacitor"
+package = "BOX-P7.5"
+
+[parts.C10]
+kind = "capacitor"
+package = "1812"        # 100 nF 1 kV ceramic chip (rev-b only)
+
+[parts.C11]
+kind = "capacitor"
+package = "1812"
 """
 
 #: :data:`PROJECT_TEXT` loaded by the package's own project reader.
@@ -219,6 +277,43 @@ CREEPAGE_SLOT: Slot | None = Slot([(6.0, round(BUS_BAR_Y - CREEPAGE_GAP / 2, 6))
                                    (22.5, round(BUS_BAR_Y - CREEPAGE_GAP / 2, 6))], 1.2)
 #: Pours keep this much copper-free board (mm) around every slot.
 SLOT_KEEPOUT = 0.5
+
+
+# --------------------------------------------------------------------------- fast capacitors
+#: rev-b's fast capacitors, one per leg: a chip capacitor on the bottom side on the line
+#: between the high-side drain and the low-side source (leg A: x = 48.0, between Q1's
+#: drain (48, 72) and Q2's source (48, 56); leg B the same 36 mm to the right).  Reference
+#: and x offset (mm) for each leg.
+FAST_CAPS = (("C10", 0.0), ("C11", 36.0))
+#: Leg A's pin 1 (HV_BUS) and pin 2 (HV_RTN) centres (mm) and the pads (along the
+#: capacitor, across it; mm).  The pads are 3.3 mm apart, above the 3.2 mm clearance target
+#: but below the 4.2 mm creepage target, so a non-plated routed slot 1.2 mm wide (at least
+#: X = 1.0 mm) runs across between them, 1.05 mm of bare board on either side (common
+#: practice for high-voltage chip capacitors); its ends reach 2.6 mm left and 0.7 mm right
+#: of the pads (the right end stays 0.75 mm clear of the switch-node column on top).
+FAST_CAP_PADS = ((48.0, 66.25), (48.0, 61.75))
+FAST_CAP_PAD = (1.2, 3.4)
+FAST_CAP_SLOT = ((44.8, 64.0), (51.0, 64.0), 1.2)
+
+
+# --------------------------------------------------------------------------- rev-a's big loop
+#: Lower edge (y, mm) of the HV_BUS strip along the top edge: rev-a's beginner layout runs
+#: the bus along the very edge of the board (y 83-88), far from its return.
+STRIP_Y = {"a": 83.0, "b": 77.0}
+#: rev-a's HV_RTN outside the corner pour (box 3.5-38 x 70-88 mm): 2.0 mm bottom-layer
+#: tracks (mm).  Q2's source runs west above R7 (whose HV_RTN pad it feeds by a stub at
+#: y = 51.6), down x = 33.5 (left of R7's GND feed at x = 37), west under the bus capacitor
+#: C1 at y = 43.8 (4.4 mm below its HV_BUS pad), up x = 14.85 between J1 and C1 (4.85 mm
+#: from both HV_BUS pads) into the corner pour; J1 pin 2 joins that track; leg B's sources
+#: run west between the MOSFET rows (y = 64, 5.6 mm from the rows' pads) to Q2's.  So leg
+#: A's loop spans the board from the bus strip at the top to y = 43 below C1.
+RETURN_TRACKS = (
+    ((48.0, 56.0), (48.0, 54.0), (33.5, 54.0), (33.5, 43.8), (14.85, 43.8), (14.85, 71.0)),
+    ((7.0, 58.2), (7.0, 60.0), (14.85, 60.0)),
+    ((84.0, 56.0), (84.0, 64.0), (48.0, 64.0), (48.0, 56.0)),
+)
+#: The stub from the return track to R7's HV_RTN pad (width mm, points mm).
+R7_STUB = (1.0, ((33.5, 51.6), (37.0, 51.6)))
 
 
 # --------------------------------------------------------------------------- builder
@@ -348,19 +443,36 @@ def build(rev: str) -> Design:
     b.track("MID", "top", 1.0, (22.0, 62.26), (35.5, 62.26))
 
     # ---- film capacitors
-    if a:   # C5 ~40 mm from leg A, in the upper-left corner: large commutation loop.
+    if a:   # C5 and C6 by the bus input in the upper-left corner, ~40 mm from leg A.
         c5 = ((10.0, 84.5), (10.0, 77.0))
-    else:   # C5 right beside leg A, clear of the switch-node column: small loop.
+        c6 = ((6.0, 82.5), (6.0, 75.0))
+    else:   # C5 right beside leg A, clear of the switch-node column; C6 beside leg B.
         c5 = ((60.5, 67.5), (60.5, 60.0))
+        c6 = ((96.5, 67.5), (96.5, 60.0))
     b.two("C5", "capacitor", "1 uF 630 V film", "BOX-P7.5", c5[0], c5[1],
           ("HV_BUS", "HV_RTN"), pad=2.2, drill=1.0, capacitance_f=1e-6, rating_v=630)
-    b.two("C6", "capacitor", "1 uF 630 V film", "BOX-P7.5", (96.5, 67.5), (96.5, 60.0),
+    b.two("C6", "capacitor", "1 uF 630 V film", "BOX-P7.5", c6[0], c6[1],
           ("HV_BUS", "HV_RTN"), pad=2.2, drill=1.0, capacitance_f=1e-6, rating_v=630)
-    # The film capacitors' HV_BUS pins go straight up into the HV_BUS strip; their HV_RTN
-    # pins sit in the bottom HV_RTN pour.
-    b.track("HV_BUS", "top", 1.6, (96.5, 67.5), (96.5, 78.0))
+    # rev-b: the film capacitors' HV_BUS pins go straight up into the HV_BUS strip; their
+    # HV_RTN pins sit in the bottom HV_RTN pour.
     if not a:
         b.track("HV_BUS", "top", 1.6, (60.5, 67.5), (60.5, 78.0))
+        b.track("HV_BUS", "top", 1.6, (96.5, 67.5), (96.5, 78.0))
+        # The legs' fast capacitors C10/C11 (rev-b only): high-voltage chip capacitors on
+        # the bottom side straight between the high-side drain and the low-side source,
+        # with a routed slot between the pads (FAST_CAP_PADS); tracks from the pads' outer
+        # edges, so their round ends stay on the pads.
+        for ref, dx in FAST_CAPS:
+            (x1, y1), (x2, y2) = FAST_CAP_PADS
+            b.two(ref, "capacitor", "100 nF 1 kV ceramic", "1812", (x1 + dx, y1),
+                  (x2 + dx, y2), ("HV_BUS", "HV_RTN"), pad=FAST_CAP_PAD[0],
+                  h=FAST_CAP_PAD[1], shape="roundrect", side="bottom",
+                  capacitance_f=100e-9, rating_v=1000)
+            edge = FAST_CAP_PAD[0] / 2
+            b.track("HV_BUS", "bottom", 2.0, (x1 + dx, y1 + edge), (x1 + dx, 72.0))
+            b.track("HV_RTN", "bottom", 2.0, (x2 + dx, y2 - edge), (x2 + dx, 56.0))
+            (sx0, sy), (sx1, _), width = FAST_CAP_SLOT
+            d.slots.append(Slot([(sx0 + dx, sy), (sx1 + dx, sy)], width))
 
     # ---- the two legs (leg B = leg A moved 36 mm right)
     for leg, dx, qh, ql, sw, gh, gl in (("A", 0.0, "Q1", "Q2", "SW_A", "G_Q1", "G_Q2"),
@@ -376,7 +488,7 @@ def build(rev: str) -> Design:
         b.leg_slots(48.0 + dx, 72.0, (-0.5, 0.5))
         b.leg_slots(53.45 + dx, 56.0, (-0.5, 0.5))
         # HV_BUS neck from the drain up into the top pour; switch-node column.
-        b.track("HV_BUS", "top", 2.0, (48.0 + dx, 72.0), (48.0 + dx, 78.0))
+        b.track("HV_BUS", "top", 2.0, (48.0 + dx, 72.0), (48.0 + dx, STRIP_Y[rev] + 1.0))
         b.track(sw, "top", 2.2, (53.45 + dx, 72.0), (53.45 + dx, 42.5))
 
     # Switch nodes to J2 on the bottom layer.
@@ -500,8 +612,16 @@ def build(rev: str) -> Design:
         d.slots.append(CREEPAGE_SLOT)
     hv_bus_region = unary_union([box(3.5, BUS_BAR_Y, 25.0, 53.5),   # bus bar J1 -> C1
                                  box(14.3, BUS_BAR_Y, 16.9, 88.0),  # column up the left side
-                                 box(3.5, 77.0, 106.0, 88.0)])      # strip over the legs
-    hv_rtn_region = box(3.5, 51.0, 106.0, 88.0)
+                                 box(3.5, STRIP_Y[rev], 106.0, 88.0)])  # strip, top edge
+    if a:
+        # rev-a's return is routed apart from the bus (see RETURN_TRACKS): the HV_RTN pour
+        # covers only the upper-left corner round C5, C6, C2 and R2.
+        hv_rtn_region = box(3.5, 70.0, 38.0, 88.0)
+        for points in RETURN_TRACKS:
+            b.track("HV_RTN", "bottom", 2.0, *points)
+        b.track("HV_RTN", "bottom", R7_STUB[0], *R7_STUB[1])
+    else:
+        hv_rtn_region = box(3.5, 51.0, 106.0, 88.0)
     # The bus bar's lower edge is the region's edge, CREEPAGE_GAP from the +5V run: the
     # +5V copper cuts the pour only where it would come closer than that.
     plus5 = [(p.geometry, CREEPAGE_GAP - 0.005) for p in d.copper()
@@ -531,22 +651,37 @@ def _bus_pad_cuts(d: Design, layer: str):
 # --------------------------------------------------------------------------- planted
 class Planted(NamedTuple):
     """A planted problem of rev-a: layer, nets (sorted), smallest straight gap (mm), the
-    area (x0, y0, x1, y1) it lies in (mm), and its kind (``clearance`` / ``creepage``)."""
+    area (x0, y0, x1, y1) it lies in (mm), and its kind (``clearance`` / ``creepage`` /
+    ``loop``).
+
+    A ``loop`` problem is no spacing problem: its layer is ``"both"``, ``gap`` is ``None``,
+    ``nets`` are the bus nets and ``leg`` names the half-bridge leg ([legs] in
+    :data:`PROJECT_TEXT`) whose commutation loop is too large.
+    """
 
     layer: str
     nets: tuple[str, str]
-    gap: float
+    gap: float | None
     area: tuple[float, float, float, float]
     kind: str
+    leg: str | None = None
 
 
 #: The planted problems of rev-a (README.md, "rev-a: the planted problems").  1-4 miss the
 #: clearance; 5 keeps the clearance but misses the creepage on a straight path, and rev-b
-#: keeps the same copper there with :data:`CREEPAGE_SLOT` cut between.
+#: keeps the same copper there with :data:`CREEPAGE_SLOT` cut between; 6 is leg A's
+#: commutation loop (C5 in the upper-left corner, the return routed apart from the bus), which
+#: rev-b closes with C10 between Q1's drain and Q2's source.
 PLANTED = {
     1: Planted("top", ("+15V", "HV_BUS"), 1.0, (21.0, 44.0, 26.0, 46.5), "clearance"),
     2: Planted("top", ("LO_A", "SW_A"), 1.2, (54.0, 41.0, 57.0, 45.5), "clearance"),
     3: Planted("top", ("HV_BUS", "HV_RTN"), 1.0, (4.0, 51.0, 10.0, 55.0), "clearance"),
     4: Planted("bottom", ("HV_BUS", "HV_RTN"), 0.8, (8.0, 76.0, 31.0, 87.0), "clearance"),
     5: Planted("top", ("+5V", "HV_BUS"), CREEPAGE_GAP, (8.5, 42.0, 20.0, 46.5), "creepage"),
+    6: Planted("both", ("HV_BUS", "HV_RTN"), None, (3.5, 42.0, 55.0, 88.0), "loop", leg="A"),
 }
+
+
+def spacing_planted() -> dict[int, Planted]:
+    """The clearance and creepage problems of :data:`PLANTED` (what the self-check sees)."""
+    return {k: p for k, p in PLANTED.items() if p.kind in ("clearance", "creepage")}

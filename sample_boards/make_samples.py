@@ -5,8 +5,9 @@ and profile layers, the plated and non-plated NC drill files and ``layoutcheck.t
 (``fullbridge.PROJECT_TEXT``, the same text for both revisions).
 Before writing, the spacing of each revision is checked with shapely against the design's
 own clearance and creepage targets (see ``spacing_check``): rev-a must show exactly the
-five planted problems (four clearance, one creepage), rev-b none.  Output is byte-for-byte
-deterministic.
+five planted spacing problems (four clearance, one creepage), rev-b none.  (Planted problem
+6, leg A's commutation loop, is no spacing problem; ``tests/test_writers.py`` checks it
+against the package's review.)  Output is byte-for-byte deterministic.
 
 Invented demo data.
 """
@@ -25,8 +26,8 @@ from layoutcheck.writers.gerber import write_gerbers  # noqa: E402
 
 
 def check(design, rev: str) -> None:
-    """Raise ``SystemExit`` unless rev-a shows exactly the planted problems and rev-b none
-    (:func:`spacing_check.check`)."""
+    """Raise ``SystemExit`` unless rev-a shows exactly the planted spacing problems and
+    rev-b none (:func:`spacing_check.check`)."""
     errors = spacing_check.check(design, rev)
     if errors:
         raise SystemExit("\n".join(errors))

@@ -100,10 +100,10 @@ def _describe(piece) -> str:
 
 
 def planted_of(layer: str, nets, where) -> int | None:
-    """The planted problem (:data:`fullbridge.PLANTED`) a finding on ``layer`` between
+    """The planted spacing problem (:data:`fullbridge.PLANTED`) a finding on ``layer`` between
     ``nets`` at ``where`` (mm) belongs to, or ``None``.  Problem 3 (J1's pads) shows on both
     layers, so its bottom-layer copy is accepted too."""
-    for pid, p in fullbridge.PLANTED.items():
+    for pid, p in fullbridge.spacing_planted().items():
         layers = (p.layer, "bottom") if pid == 3 else (p.layer,)
         x0, y0, x1, y1 = p.area
         if layer in layers and tuple(sorted(nets)) == p.nets and x0 <= where[0] <= x1 \
@@ -130,7 +130,7 @@ def check(d: Design, rev: str) -> list[str]:
     if rev == "b":
         return [f"rev-b: {v}" for vs in groups.values() for v in vs]
     errors = [f"rev-a: unplanned {v}" for v in groups.get(None, [])]
-    for pid, p in fullbridge.PLANTED.items():
+    for pid, p in fullbridge.spacing_planted().items():
         found = groups.get(pid)
         if not found:
             errors.append(f"rev-a: planted problem {pid} ({p.nets}) is missing")

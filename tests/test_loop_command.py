@@ -31,21 +31,38 @@ def run(argv, capsys):
     return rc, out, err
 
 
-def loop_of(folder, capsys, *extra):
+def bare_text(folder) -> str:
+    """The sample's project file without its power-loop data ([switching], [legs],
+    [parts]): voltages and environment only, so the rule's defaults apply (1 A/ns, no
+    rating, no C_oss, no package)."""
+    text = (folder / "layoutcheck.toml").read_text(encoding="utf-8")
+    return text.split("\n[switching]")[0] + "\n"
+
+
+@pytest.fixture
+def bare(tmp_path):
+    def make(folder):
+        p = tmp_path / f"bare-{folder.name}.toml"
+        p.write_text(bare_text(folder), encoding="utf-8")
+        return p
+    return make
+
+
+def loop_of(folder, capsys, *extra, rc_want=0):
     rc, out, err = run(["loop", folder, "--through", LEG_A, "--format", "json", *extra],
                        capsys)
-    assert rc == 0, err
+    assert rc == rc_want, err
     doc = json.loads(out)
     assert len(doc["loops"]) == 1
     return doc
 
 
-def test_json_shape_on_the_sample(capsys):
+def test_json_shape_on_the_sample(capsys, bare):
     """The contract keys; the parts in loop order; the path starts at C5 pad 1 (10, 84.5)
     as the sample places it; the enclosed area is shapely's area of that path; the
     overshoot at the assumed 1 A/ns equals L in nH (notes PL-1) and the peak adds the
     400 V of HV_BUS."""
-    doc = loop_of(REV_A, capsys)
+    doc = loop_of(REV_A, capsys, "--project", bare(REV_A))
     (e,) = doc["loops"]
     assert {"name", "parts", "inductance_nh", "area_mm2", "length_mm", "stacked_return_nh",
             "overshoot_v", "ringing_mhz", "path"} <= set(e)
@@ -63,28 +80,29 @@ def test_json_shape_on_the_sample(capsys):
     assert "CAUTION" in doc["caution"]
 
 
-def test_rev_b_loop_is_smaller(capsys):
+def test_rev_b_loop_is_smaller(capsys, bare):
     """Moving C5 beside leg A (rev-b) shrinks the loop's area and inductance, as the
     sample scenario intends."""
-    a = loop_of(REV_A, capsys)["loops"][0]
-    b = loop_of(REV_B, capsys)["loops"][0]
+    a = loop_of(REV_A, capsys, "--project", bare(REV_A))["loops"][0]
+    b = loop_of(REV_B, capsys, "--project", bare(REV_B))["loops"][0]
     assert b["area_mm2"] < 0.5 * a["area_mm2"]
     assert b["inductance_nh"] < a["inductance_nh"]
 
 
 def test_text_output_and_out_file(tmp_path, capsys):
+    """With the sample's own project data rev-a's loop is an error (exit 1)."""
     target = tmp_path / "loop.json"
     rc, out, _ = run(["loop", REV_A, "--through", LEG_A, "--format", "json", "--out",
                       target], capsys)
-    assert rc == 0 and out == ""
+    assert rc == 1 and out == ""
     assert json.loads(target.read_text(encoding="utf-8"))["loops"][0]["parts"] == [
         "C5", "Q1", "Q2"]
     rc, out, _ = run(["loop", REV_A, "--through", LEG_A], capsys)
-    assert rc == 0 and LEG_A in out and "nH" in out and "Assumptions" in out
+    assert rc == 1 and LEG_A in out and "nH" in out and "Assumptions" in out
 
 
 def _project(tmp_path, extra: str) -> Path:
-    text = (REV_A / "layoutcheck.toml").read_text(encoding="utf-8") + "\n" + extra
+    text = bare_text(REV_A) + "\n" + extra
     p = tmp_path / "project.toml"
     p.write_text(text, encoding="utf-8")
     return p
@@ -106,10 +124,10 @@ def test_derated_rating_exceeded_exits_1(tmp_path, capsys):
     assert rc == 0 and json.loads(out)["loops"][0]["inductance_nh"] < 500
 
 
-def test_package_in_project_adds_internal_inductance(tmp_path, capsys):
+def test_package_in_project_adds_internal_inductance(tmp_path, capsys, bare):
     """[parts.Qx] package = "TO-247" adds the table's 10 nH per switch (from memory) and
     [parts.C5] internal_nh = 4 adds 4 nH: 24 nH more than without."""
-    base = loop_of(REV_A, capsys)["loops"][0]
+    base = loop_of(REV_A, capsys, "--project", bare(REV_A))["loops"][0]
     p = _project(tmp_path, '[parts.Q1]\npackage = "TO-247"\n[parts.Q2]\npackage = "TO-247"\n'
                            '[parts.C5]\ninternal_nh = 4\n')
     e = loop_of(REV_A, capsys, "--project", p)["loops"][0]

@@ -171,6 +171,9 @@ def loop_cmd(
     board = read_board(fab_path, proj, progress=_progress())
     graph = build_netgraph(board)
     result = evaluate_through(board, graph, proj, through)
+    for a in reversed([*proj.assumptions, *board.assumptions]):
+        if a not in result.assumptions:
+            result.assumptions.insert(0, a)
     render = loop_report.render_json if format is Format.json else loop_report.render_text
     write_output(render(result), out)
     raise typer.Exit(1 if result.errors else 0)

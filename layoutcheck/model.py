@@ -192,6 +192,12 @@ class Board:
     components:    parts by reference designator.
     has_net_names: True when the files carry net names (X2 ``.N``, IPC-2581 nets, netlist).
     assumptions:   what the readers had to assume.
+    netlist_problems: disagreements between an IPC-D-356 netlist and the copper, left by
+                   :func:`layoutcheck.readers.netlist_apply.apply_netlist` for the
+                   ``netlist-mismatch`` rule (empty when no netlist was read).
+    source_kind:   ``"plan"`` for a stripboard / pad-per-hole plan, else ``None``.
+    plan:          the plan's own description (:class:`layoutcheck.readers.plan.Plan`)
+                   for plan boards, else ``None``.
     """
 
     name: str
@@ -205,6 +211,9 @@ class Board:
     has_net_names: bool = False
     assumptions: list[Assumption] = field(default_factory=list)
     source: str | None = None
+    netlist_problems: list[Any] = field(default_factory=list)
+    source_kind: str | None = None
+    plan: Any = None
 
     @property
     def size_mm(self) -> tuple[float, float] | None:

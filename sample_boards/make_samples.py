@@ -2,7 +2,9 @@
 
 Writes ``fullbridge-rev-a/`` and ``fullbridge-rev-b/`` beside this file: Gerber X2 copper
 and profile layers, the plated and non-plated NC drill files and ``layoutcheck.toml``
-(``fullbridge.PROJECT_TEXT``, the same text for both revisions).
+(``fullbridge.PROJECT_TEXT``, the same text for both revisions).  Rev-a is also written
+in the other input formats (:func:`make_other_formats`): ``fullbridge-rev-a-plain/`` (plain
+Gerber + NC drill + IPC-D-356A netlist) and ``fullbridge-rev-a.xml`` (IPC-2581).
 Before writing, the spacing of each revision is checked with shapely against the design's
 own clearance and creepage targets (see ``spacing_check``): rev-a must show exactly the
 five planted spacing problems (four clearance, one creepage), rev-b none.  (Planted problem
@@ -47,10 +49,38 @@ def make(rev: str, root: Path = HERE) -> list[Path]:
     return sorted(paths + [toml])
 
 
+def make_other_formats(rev: str = "a", root: Path = HERE) -> list[Path]:
+    """The same revision in the other input formats; returns the files written (sorted).
+
+    * ``<name>-plain/``: plain Gerber (no X2 attributes) copper and profile, the NC drill
+      files, the IPC-D-356A netlist ``<name>.ipc`` (CUST 1, millimetres) that names the
+      nets, and the same ``layoutcheck.toml``;
+    * ``<name>.xml``: the IPC-2581 (revision C, millimetres) file of the revision.
+    """
+    from layoutcheck.writers.ipc2581 import write_ipc2581
+    from layoutcheck.writers.ipc356 import write_ipc356
+
+    design = fullbridge.build(rev)
+    check(design, rev)
+    out = root / f"{design.name}-plain"
+    out.mkdir(parents=True, exist_ok=True)
+    for old in list(out.glob("*.gbr")) + list(out.glob("*.drl")) + list(out.glob("*.ipc")):
+        old.unlink()
+    paths = write_gerbers(design, out, x2=False) + write_drill(design, out)
+    paths.append(write_ipc356(design, out))
+    toml = out / "layoutcheck.toml"
+    toml.write_text(fullbridge.PROJECT_TEXT, encoding="utf-8", newline="\n")
+    paths.append(toml)
+    paths.append(write_ipc2581(design, root / f"{design.name}.xml"))
+    return sorted(paths)
+
+
 def main() -> None:
     for rev in ("a", "b"):
         for p in make(rev):
             print(p.relative_to(HERE))
+    for p in make_other_formats("a"):
+        print(p.relative_to(HERE))
 
 
 if __name__ == "__main__":

@@ -10,7 +10,7 @@ Invented demo data: no real product, part number or brand.  Two revisions of one
 * ``build("b")`` - rev-b, every problem fixed (the creepage one with a routed slot,
   :data:`CREEPAGE_SLOT`), C5 beside leg A, C6 beside leg B, a bottom-side chip capacitor
   (C10, C11) straight between each leg's high-side drain and low-side source
-  (:data:`FAST_CAPS`) and HV_RTN poured under the whole power area.
+  (:data:`HF_CAPS`) and HV_RTN poured under the whole power area.
 
 Circuit (nets in capitals):
   J1 (bus in): 1 HV_BUS, 2 HV_RTN.  J2 (bridge out): 1 OUT_A = SW_A, 2 OUT_B = SW_B.
@@ -284,16 +284,16 @@ SLOT_KEEPOUT = 0.5
 #: between the high-side drain and the low-side source (leg A: x = 48.0, between Q1's
 #: drain (48, 72) and Q2's source (48, 56); leg B the same 36 mm to the right).  Reference
 #: and x offset (mm) for each leg.
-FAST_CAPS = (("C10", 0.0), ("C11", 36.0))
+HF_CAPS = (("C10", 0.0), ("C11", 36.0))
 #: Leg A's pin 1 (HV_BUS) and pin 2 (HV_RTN) centres (mm) and the pads (along the
 #: capacitor, across it; mm).  The pads are 3.3 mm apart, above the 3.2 mm clearance target
 #: but below the 4.2 mm creepage target, so a non-plated routed slot 1.2 mm wide (at least
 #: X = 1.0 mm) runs across between them, 1.05 mm of bare board on either side (common
 #: practice for high-voltage chip capacitors); its ends reach 2.6 mm left and 0.7 mm right
 #: of the pads (the right end stays 0.75 mm clear of the switch-node column on top).
-FAST_CAP_PADS = ((48.0, 66.25), (48.0, 61.75))
-FAST_CAP_PAD = (1.2, 3.4)
-FAST_CAP_SLOT = ((44.8, 64.0), (51.0, 64.0), 1.2)
+HF_CAP_PADS = ((48.0, 66.25), (48.0, 61.75))
+HF_CAP_PAD = (1.2, 3.4)
+HF_CAP_SLOT = ((44.8, 64.0), (51.0, 64.0), 1.2)
 
 
 # --------------------------------------------------------------------------- rev-a's big loop
@@ -460,18 +460,18 @@ def build(rev: str) -> Design:
         b.track("HV_BUS", "top", 1.6, (96.5, 67.5), (96.5, 78.0))
         # The legs' fast capacitors C10/C11 (rev-b only): high-voltage chip capacitors on
         # the bottom side straight between the high-side drain and the low-side source,
-        # with a routed slot between the pads (FAST_CAP_PADS); tracks from the pads' outer
+        # with a routed slot between the pads (HF_CAP_PADS); tracks from the pads' outer
         # edges, so their round ends stay on the pads.
-        for ref, dx in FAST_CAPS:
-            (x1, y1), (x2, y2) = FAST_CAP_PADS
+        for ref, dx in HF_CAPS:
+            (x1, y1), (x2, y2) = HF_CAP_PADS
             b.two(ref, "capacitor", "100 nF 1 kV ceramic", "1812", (x1 + dx, y1),
-                  (x2 + dx, y2), ("HV_BUS", "HV_RTN"), pad=FAST_CAP_PAD[0],
-                  h=FAST_CAP_PAD[1], shape="roundrect", side="bottom",
+                  (x2 + dx, y2), ("HV_BUS", "HV_RTN"), pad=HF_CAP_PAD[0],
+                  h=HF_CAP_PAD[1], shape="roundrect", side="bottom",
                   capacitance_f=100e-9, rating_v=1000)
-            edge = FAST_CAP_PAD[0] / 2
+            edge = HF_CAP_PAD[0] / 2
             b.track("HV_BUS", "bottom", 2.0, (x1 + dx, y1 + edge), (x1 + dx, 72.0))
             b.track("HV_RTN", "bottom", 2.0, (x2 + dx, y2 - edge), (x2 + dx, 56.0))
-            (sx0, sy), (sx1, _), width = FAST_CAP_SLOT
+            (sx0, sy), (sx1, _), width = HF_CAP_SLOT
             d.slots.append(Slot([(sx0 + dx, sy), (sx1 + dx, sy)], width))
 
     # ---- the two legs (leg B = leg A moved 36 mm right)

@@ -827,13 +827,13 @@ def test_commutation_loop_placement():
             assert pads["1"].y > pads["2"].y and drain.y > source.y
 
 
-def _fast_cap_slot(d, dx=0.0):
-    (x0, y), (x1, _), width = fullbridge.FAST_CAP_SLOT
+def _hf_cap_slot(d, dx=0.0):
+    (x0, y), (x1, _), width = fullbridge.HF_CAP_SLOT
     return next(s for s in d.slots if s.points == [(x0 + dx, y), (x1 + dx, y)]
                 and s.width == width)
 
 
-def test_fast_cap_slot_path_worked_by_hand():
+def test_hf_cap_slot_path_worked_by_hand():
     """rev-b's C10: pads 1.2 x 3.4 mm (corner radius 0.25 mm) 3.3 mm apart, above the
     3.2 mm clearance target but below the 4.0 mm creepage at 400 V (IEC 60664-1 via the
     requirement function).  Round the slot's right end: from the HV_BUS pad's corner
@@ -845,9 +845,9 @@ def test_fast_cap_slot_path_worked_by_hand():
     finds creepage problems only between C10's and C11's pads and tracks (bottom, HV_BUS /
     HV_RTN, 3.3 mm straight at the closest)."""
     d = fullbridge.build("b")
-    (x1, y1), (x2, y2) = fullbridge.FAST_CAP_PADS
-    along, across = fullbridge.FAST_CAP_PAD
-    slot = _fast_cap_slot(d)
+    (x1, y1), (x2, y2) = fullbridge.HF_CAP_PADS
+    along, across = fullbridge.HF_CAP_PAD
+    slot = _hf_cap_slot(d)
     cap = slot.points[1]
     corner = (x1 + across / 2 - 0.25, y1 - along / 2 + 0.25)
     dx, dy = cap[0] - corner[0], corner[1] - cap[1]
@@ -863,11 +863,11 @@ def test_fast_cap_slot_path_worked_by_hand():
     need = _required(400)
     assert need.clearance_mm + fullbridge.MARGIN <= 3.3 < need.creepage_mm
     assert want > need.creepage_mm + fullbridge.MARGIN
-    d.slots = [s for s in d.slots if s not in (slot, _fast_cap_slot(d, 36.0))]
+    d.slots = [s for s in d.slots if s not in (slot, _hf_cap_slot(d, 36.0))]
     bad = spacing_check.spacing_violations(d)
     assert {(v.layer, v.nets, v.kind) for v in bad} == {
         ("bottom", ("HV_BUS", "HV_RTN"), "creepage")}
-    mids = [((x1 + x2) / 2 + dx, (y1 + y2) / 2) for _, dx in fullbridge.FAST_CAPS]
+    mids = [((x1 + x2) / 2 + dx, (y1 + y2) / 2) for _, dx in fullbridge.HF_CAPS]
     near = {min(range(len(mids)), key=lambda k: math.dist(v.where, mids[k])) for v in bad}
     assert near == {0, 1}
     assert all(min(math.dist(v.where, m) for m in mids) < 2.0 for v in bad)

@@ -64,12 +64,21 @@ def review_cmd(
     project: Path | None = typer.Option(None, "--project", help="Project file to use."),
     format: Format = typer.Option(Format.text, "--format", help="Report format."),
     out: Path | None = typer.Option(None, "--out", help="Write the report to this file."),
+    svg: Path | None = typer.Option(None, "--svg", help="Write a drawing of a stripboard "
+                                    "plan (copper and part side, findings marked) here."),
 ):
     """Review a board: spacing, connectivity and the other rules; exit 1 if errors."""
     from .reports import json_report, text_report
     from .review import review
 
     result = review(path, project, progress=_progress())
+    if svg is not None:
+        if getattr(result.board, "plan", None) is None:
+            sys.stderr.write("layoutcheck: --svg: a drawing is only available for "
+                             "stripboard plans; none written\n")
+        else:
+            from .reports import plan_svg
+            write_output(plan_svg.render(result), svg)
     text = (json_report if format is Format.json else text_report).render(result)
     write_output(text, out)
     raise typer.Exit(1 if result.errors else 0)

@@ -43,20 +43,27 @@ def resolve_inputs(path: Path | str, project_path: Path | str | None = None,
 
     * ``project_path`` given: that project file; fab files from its ``[board] files``
       unless ``path`` is itself a folder, zip or fab file.
-    * ``path`` is a ``.toml`` file: it is the project file.
+    * ``path`` is a ``.toml`` file with a ``[stripboard]`` table: a stripboard plan, which
+      is also its own project file (unless ``project_path`` names another).
+    * ``path`` is another ``.toml`` file: it is the project file.
     * ``path`` is a folder: ``layoutcheck.toml`` inside it, if any.
     * ``path`` is a zip: a ``layoutcheck.toml`` member at its top level, if any.
     """
     path = Path(path)
     if not path.exists():
         raise InputFileError("no such file or folder", file=str(path))
+    plan = "stripboard" in _toml_tables(path)
     if project_path is not None:
         project = load_project(Path(project_path))
+        if plan:
+            return path, project
         if path.suffix.lower() == ".toml" and path.resolve() == Path(project_path).resolve():
             return (project.board_files or path.parent), project
         return path, project
     if path.is_file() and path.suffix.lower() == ".toml":
         project = load_project(path)
+        if plan:
+            return path, project
         return (project.board_files or path.parent), project
     if path.is_dir():
         pf = find_project_file(path)
@@ -67,6 +74,16 @@ def resolve_inputs(path: Path | str, project_path: Path | str | None = None,
         if proj is not None:
             return path, proj
     return path, load_project(None)
+
+
+def _toml_tables(path: Path) -> set[str]:
+    """Top-level table names of a ``.toml`` file (empty for anything else or bad TOML)."""
+    if not (path.is_file() and path.suffix.lower() == ".toml"):
+        return set()
+    try:
+        return set(tomllib.loads(path.read_text("utf-8")))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return set()
 
 
 def project_from_zip(path: Path) -> Project | None:

@@ -57,6 +57,7 @@ from pathlib import Path
 
 import numpy as np
 import shapely
+import shapely.ops
 from shapely.geometry import LineString, Polygon, box
 
 from ..errors import InputFileError
@@ -536,6 +537,18 @@ class _Builder:
         plan.leads.append(lead)
         return lead
 
+    def _lead_point(self, board: Board, lead: Lead, hole) -> tuple[float, float]:
+        """Where a lead meets copper: the point of its solder joint nearest the hole centre
+        (the hole itself is drilled out, so current paths start on the joint), or the hole
+        centre when the lead has no copper around it."""
+        x, y = self.plan.xy(hole)
+        if not lead.shapes:
+            return (x, y)
+        joint = shapely.union_all([board.shapes[i].geometry for i in lead.shapes])
+        p = shapely.ops.nearest_points(joint.buffer(-1e-3) if not joint.buffer(-1e-3).is_empty
+                                       else joint, shapely.Point(x, y))[0]
+        return (round(p.x, 6), round(p.y, 6))
+
     def _parts(self, board: Board) -> None:
         parts = self.data.get("part", [])
         if not isinstance(parts, list):
@@ -563,9 +576,10 @@ class _Builder:
                 pl = self.L.find(ln, where) if isinstance(where, str) else ln
                 hole = self.hole(where, pl, f"part {ref} pin {name}")
                 self.take(hole, f"{ref} pin {name}", pl)
-                self._joint(board, ref, str(name), hole, pl, nets.get(name))
+                lead = self._joint(board, ref, str(name), hole, pl, nets.get(name))
                 comp.pins[str(name)] = Pin(str(name), name=str(name),
-                                           position=self.plan.xy(hole), layer="bottom")
+                                           position=self._lead_point(board, lead, hole),
+                                           layer="bottom")
             xs = [p.position for p in comp.pins.values()]
             comp.position = (sum(x for x, _ in xs) / len(xs), sum(y for _, y in xs) / len(xs))
             board.components[ref] = comp

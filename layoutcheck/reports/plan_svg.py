@@ -9,6 +9,8 @@ drawing.
 """
 from __future__ import annotations
 
+import textwrap
+
 from xml.sax.saxutils import escape
 
 import shapely
@@ -35,8 +37,11 @@ def render(review) -> str:
     w, h = plan.cols * plan.pitch, plan.rows * plan.pitch
     gap = 12.0
     total_w = 2 * w + gap + 2 * _MARGIN
-    n = len(review.findings)
-    total_h = h + 2 * _MARGIN + 8 + 5 * (n + 1)
+    chars = max(40, int((2 * w + gap) / 1.15))   # about 1.15 mm per character at size 2.2
+    wrapped = [textwrap.wrap(f"{k}. [{f.severity}] {f.rule}: {f.message}", chars,
+                             subsequent_indent="    ")
+               for k, f in enumerate(review.findings, 1)]
+    total_h = h + 2 * _MARGIN + 14 + sum(3.2 * len(x) + 1.4 for x in wrapped)
     parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{total_w * 4:.0f}" '
              f'height="{total_h * 4:.0f}" viewBox="0 0 {total_w:.3f} {total_h:.3f}" '
              'font-family="sans-serif">',
@@ -118,9 +123,12 @@ def render(review) -> str:
         parts.append(f'<circle cx="{x:.3f}" cy="{y:.3f}" r="1.6" fill="none" '
                      f'stroke="{col}" stroke-width="0.4"/><text x="{x + 1.8:.3f}" '
                      f'y="{y - 1.0:.3f}" font-size="2" fill="{col}">{k}</text>')
-    y0 = _MARGIN + 6 + h + 6
-    for k, f in enumerate(review.findings, 1):
-        parts.append(f'<text x="{_MARGIN}" y="{y0 + 5 * (k - 1):.3f}" font-size="2.2">'
-                     f'{k}. [{f.severity}] {f.rule}: {escape(f.message[:220])}</text>')
+    y = _MARGIN + 6 + h + 6
+    for lines in wrapped:
+        for line in lines:
+            parts.append(f'<text x="{_MARGIN}" y="{y:.3f}" font-size="2.2">'
+                         f'{escape(line)}</text>')
+            y += 3.2
+        y += 1.4
     parts.append("</svg>")
     return "\n".join(parts) + "\n"

@@ -80,7 +80,7 @@ def board_from_fab_files(files: list[FabFile], project: Project, *, name: str,
         board.shapes.extend(_copper_shapes(p, names_by_file[p.file.name], board.outline))
     board.has_net_names = any(s.net is not None for s in board.shapes)
     board.holes = _holes(parsed, board, project, assumptions)
-    board.components = _components(board.shapes)
+    board.components = components_from_shapes(board.shapes)
     board.stackup = _stackup(board, project, assumptions)
     return board
 
@@ -303,8 +303,11 @@ def _copper_shapes(p: _Parsed, layer: str, outline: Polygon | None) -> list[Copp
     return out
 
 
-def _components(shapes: list[CopperShape]) -> dict[str, Component]:
-    comps: dict[str, Component] = {}
+def components_from_shapes(shapes: list[CopperShape],
+                           known: dict[str, Component] | None = None) -> dict[str, Component]:
+    """Components and their pins from the ``component``/``pin`` marks on copper shapes,
+    added to ``known`` (a copy) when given; a pin's position is its pad's centroid (mm)."""
+    comps: dict[str, Component] = dict(known or {})
     for s in shapes:
         if not s.component:
             continue

@@ -51,8 +51,9 @@ import numpy as np
 import shapely
 
 from ..errors import InputFileError
-from ..model import Assumption, Board, Component, Pin
+from ..model import Assumption, Board
 from ..netgraph import HOLE_CONTACT_MM, build_netgraph
+from .gerber_board import components_from_shapes
 from .ipc356 import NO_CONNECT, Netlist, NetRecord
 
 #: A point within this distance (mm) of copper counts as on it: covers the 0.0001 in
@@ -220,7 +221,7 @@ def apply_netlist(board: Board, netlist: Netlist) -> list[NetlistProblem]:
         problems.extend(_splits(graph, recs, hit_cond, labels_of, file))
         _name_copper(board, graph, labels_of)
     _mark_pads(board, recs, hits)
-    board.components = _rebuild_components(board)
+    board.components = components_from_shapes(board.shapes, board.components)
     board.has_net_names = True
 
     named = sum(1 for c in labels_of if labels_of[c])
@@ -537,18 +538,6 @@ def _mark_pads(board: Board, recs, hits) -> None:
             sh.component, sh.pin = r.ref, r.pin
             if sh.function is None:
                 sh.function = "ComponentPad" if r.kind in ("317", "307") else "SMDPad"
-
-
-def _rebuild_components(board: Board) -> dict[str, Component]:
-    comps = {ref: c for ref, c in board.components.items()}
-    for s in board.shapes:
-        if not s.component:
-            continue
-        c = comps.setdefault(s.component, Component(s.component))
-        if s.pin is not None and s.pin not in c.pins:
-            pt = s.geometry.centroid
-            c.pins[s.pin] = Pin(s.pin, s.pin_name, s.net or None, (pt.x, pt.y), s.layer)
-    return dict(sorted(comps.items()))
 
 
 __all__ = ["apply_netlist", "NetlistProblem", "record_layers", "MATCH_TOL_MM"]

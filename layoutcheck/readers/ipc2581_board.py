@@ -26,7 +26,7 @@ from .ipc2581_xml import local
 
 def assemble(f, name: str, project) -> Board:
     """Build the Board from a finished second pass ``f`` (``ipc2581._Features``)."""
-    d, step = f.d, f.step
+    d = f.d
     board = Board(name=name)
     board.assumptions = list(f.sh.notes) + list(f.notes)
     order = list(f.copper)

@@ -1,5 +1,7 @@
 """The safety caution every report carries (text shared by all report formats)."""
 
+import textwrap
+
 CAUTION = (
     "CAUTION: the circuits reviewed here carry lethal voltages and store dangerous energy. "
     "This review is an aid to a person's judgement, not a certification. It checks only what "
@@ -8,3 +10,14 @@ CAUTION = (
     "standard, local electrical codes and licensed practice govern: confirm every spacing "
     "and rating against them before building, and never work on a live or charged board."
 )
+
+
+def closing_lines(assumptions, width: int) -> list[str]:
+    """The end of every text report: the assumptions, then the caution, wrapped."""
+    lines = [f"Assumptions ({len(assumptions)})"]
+    for a in assumptions:
+        lines.extend(textwrap.wrap(f"[{a.topic}] {a.text}", width, initial_indent="  - ",
+                                   subsequent_indent="    "))
+    lines.append("")
+    lines.extend(textwrap.wrap(CAUTION, width))
+    return lines

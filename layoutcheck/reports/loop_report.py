@@ -12,9 +12,8 @@ Units: nH, mm, mm^2, V, MHz, as the JSON key names say.  JSON of the command::
 from __future__ import annotations
 
 import json
-import textwrap
 
-from .caution import CAUTION
+from .caution import CAUTION, closing_lines
 from .json_report import _clean
 
 SCHEMA = "layoutcheck-loop/1"
@@ -65,10 +64,5 @@ def render_text(result) -> str:
         if e["severity"] == "error":
             lines.append(f"  ERROR: {e['name']}: the peak exceeds the derated switch rating")
     lines.append("")
-    lines.append(f"Assumptions ({len(result.assumptions)})")
-    for a in result.assumptions:
-        lines.extend(textwrap.wrap(f"[{a.topic}] {a.text}", WIDTH, initial_indent="  - ",
-                                   subsequent_indent="    "))
-    lines.append("")
-    lines.extend(textwrap.wrap(CAUTION, WIDTH))
+    lines.extend(closing_lines(result.assumptions, WIDTH))
     return "\n".join(lines) + "\n"

@@ -7,7 +7,7 @@ import textwrap
 from collections import defaultdict
 
 from ..findings import SEVERITY_RANK
-from .caution import CAUTION
+from .caution import closing_lines
 from .json_report import auto_named_nets, loop_entries
 from .loop_report import loop_lines
 
@@ -105,10 +105,5 @@ def render(review) -> str:
                          + (f"  pins {pins}" if pins else ""))
         lines.append("")
 
-    lines.append(f"Assumptions ({len(review.assumptions)})")
-    for a in review.assumptions:
-        lines.extend(textwrap.wrap(f"[{a.topic}] {a.text}", WIDTH, initial_indent="  - ",
-                                   subsequent_indent="    "))
-    lines.append("")
-    lines.extend(textwrap.wrap(CAUTION, WIDTH))
+    lines.extend(closing_lines(review.assumptions, WIDTH))
     return "\n".join(lines) + "\n"

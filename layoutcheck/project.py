@@ -483,18 +483,14 @@ def project_from_data(data: dict, path: Path | None, text: str = "") -> Project:
         proj.earth.kind = earth["kind"]
 
     stack = _table(data, "stackup", fail)
-    if "thickness_mm" in stack:
-        t = stack["thickness_mm"]
-        if isinstance(t, bool) or not isinstance(t, (int, float)) or not 0.05 <= t <= 20:
-            fail("[stackup] thickness_mm must be a board thickness in mm (0.05..20)",
-                 "thickness_mm")
-        proj.stackup_thickness_mm = float(t)
-    if "copper_um" in stack:
-        t = stack["copper_um"]
-        if isinstance(t, bool) or not isinstance(t, (int, float)) or not 1 <= t <= 1000:
-            fail("[stackup] copper_um must be a copper thickness in micrometres (1..1000)",
-                 "copper_um")
-        proj.stackup_copper_um = float(t)
+    for key, attr, lo, hi, what in (
+            ("thickness_mm", "stackup_thickness_mm", 0.05, 20, "a board thickness in mm"),
+            ("copper_um", "stackup_copper_um", 1, 1000, "a copper thickness in micrometres")):
+        if key in stack:
+            t = stack[key]
+            if not _in_range(t, lo, hi):
+                fail(f"[stackup] {key} must be {what} ({lo:g}..{hi:g})", key)
+            setattr(proj, attr, float(t))
 
     rules = _table(data, "rules", fail)
     if "ignore" in rules:
@@ -727,6 +723,11 @@ def _more_environment(env: dict, e: Environment, fail) -> None:
     if extra:
         fail(f"[environment] unknown key(s) {', '.join(sorted(extra))}; expected "
              f"{', '.join(sorted(known))}", sorted(extra)[0])
+
+
+def _in_range(v, lo: float, hi: float) -> bool:
+    """True for a real number (not a bool) with lo <= v <= hi."""
+    return not isinstance(v, bool) and isinstance(v, (int, float)) and lo <= v <= hi
 
 
 def _table(data: dict, name: str, fail) -> dict:
